@@ -1,0 +1,45 @@
+/**
+ * The engine dispatcher: one function from (method, params) to a result, run by the Electron
+ * main process' worker thread, by the browser-mode Web Worker, and by tests. It validates the
+ * method name and every parameter before computing, and throws only EngineError.
+ */
+import { EngineError } from "../errors";
+import { eigenvalues } from "../linalg";
+import { ENGINE_VERSION } from "../version";
+import { ENGINE_METHODS, type EngineMethod, type EngineMethods, type Progress, isEngineMethod } from "./contract";
+import { requireMatrixParam, requireObjectParams } from "./params";
+
+/** What a handler may use while it runs: cooperative cancellation and progress reports. */
+export interface RequestContext {
+  isCancelled(): boolean;
+  reportProgress(progress: Progress): void;
+}
+
+type Handler<M extends EngineMethod> = (
+  params: unknown,
+  context: RequestContext,
+) => EngineMethods[M]["result"] | Promise<EngineMethods[M]["result"]>;
+
+const handlers: { [M in EngineMethod]: Handler<M> } = {
+  "engine.info": (params) => {
+    requireObjectParams(params, "engine.info");
+    return { name: "loopwright-engine", version: ENGINE_VERSION, methods: [...ENGINE_METHODS] };
+  },
+  "linalg.eigenvalues": (params) => {
+    const p = requireObjectParams(params, "linalg.eigenvalues");
+    const matrix = requireMatrixParam(p, "matrix", { square: true });
+    return { eigenvalues: eigenvalues(matrix) };
+  },
+};
+
+export const NO_CONTEXT: RequestContext = { isCancelled: () => false, reportProgress: () => undefined };
+
+export async function dispatch(method: unknown, params: unknown, context: RequestContext = NO_CONTEXT): Promise<unknown> {
+  if (!isEngineMethod(method)) {
+    throw new EngineError("unknown-method", `Unknown engine request ${JSON.stringify(method)}; known: ${ENGINE_METHODS.join(", ")}`, {
+      method: typeof method === "string" ? method : String(method),
+    });
+  }
+  const handler = handlers[method] as Handler<EngineMethod>;
+  return handler(params, context);
+}

@@ -1,0 +1,152 @@
+/**
+ * One place for numerical tolerances in tests. Each helper reports the actual and the allowed
+ * error, so a failure says how far off a result was, not just that it was.
+ */
+import { expect } from "vitest";
+
+export const EPS = Number.EPSILON;
+
+type MatrixLike = ArrayLike<ArrayLike<number>> | { to2DArray(): number[][] };
+
+export function toRows(m: MatrixLike): number[][] {
+  if ("to2DArray" in m) return m.to2DArray();
+  return Array.from(m as ArrayLike<ArrayLike<number>>, (row) => Array.from(row));
+}
+
+export function frobenius(m: MatrixLike): number {
+  let s = 0;
+  for (const row of toRows(m)) for (const v of row) s += v * v;
+  return Math.sqrt(s);
+}
+
+export function frobeniusDifference(a: MatrixLike, b: MatrixLike): number {
+  const ra = toRows(a);
+  const rb = toRows(b);
+  expect(ra.length, "row count").toBe(rb.length);
+  let s = 0;
+  for (let i = 0; i < ra.length; i++) {
+    expect(ra[i]!.length, `column count of row ${i}`).toBe(rb[i]!.length);
+    for (let j = 0; j < ra[i]!.length; j++) {
+      const d = ra[i]![j]! - rb[i]![j]!;
+      s += d * d;
+    }
+  }
+  return Math.sqrt(s);
+}
+
+/** |actual − expected| ≤ tol·max(|expected|, floor). */
+export function expectRelativeClose(actual: number, expected: number, tol: number, what = "value", floor = 0): void {
+  const err = Math.abs(actual - expected);
+  const allowed = tol * Math.max(Math.abs(expected), floor);
+  if (!(err <= allowed) || !Number.isFinite(actual)) {
+    expect.fail(`${what}: got ${actual}, expected ${expected}; error ${err.toExponential(3)} exceeds allowed ${allowed.toExponential(3)}`);
+  }
+}
+
+/** ‖actual − expected‖_F ≤ tol·max(‖expected‖_F, floor). */
+export function expectMatrixClose(actual: MatrixLike, expected: MatrixLike, tol: number, what = "matrix", floor = 1): void {
+  const err = frobeniusDifference(actual, expected);
+  const allowed = tol * Math.max(frobenius(expected), floor);
+  if (!(err <= allowed)) {
+    expect.fail(`${what}: ‖actual − expected‖_F = ${err.toExponential(3)} exceeds allowed ${allowed.toExponential(3)}`);
+  }
+}
+
+/** A plain bound check with a readable message: value ≤ allowed. */
+export function expectAtMost(value: number, allowed: number, what: string): void {
+  if (!(value <= allowed)) expect.fail(`${what}: ${value.toExponential(3)} exceeds allowed ${allowed.toExponential(3)}`);
+}
+
+export interface ComplexLike { re: number; im: number }
+
+/** Matches two multisets of complex numbers (greedy nearest pairing after sorting). */
+export function expectComplexSetsClose(actual: ComplexLike[], expected: ComplexLike[], tol: number, what = "eigenvalues"): void {
+  expect(actual.length, `${what}: count`).toBe(expected.length);
+  const remaining = [...actual];
+  for (const e of expected) {
+    let best = -1;
+    let bestDist = Infinity;
+    remaining.forEach((a, i) => {
+      const d = Math.hypot(a.re - e.re, a.im - e.im);
+      if (d < bestDist) { bestDist = d; best = i; }
+    });
+    const allowed = tol * Math.max(1, Math.hypot(e.re, e.im));
+    if (!(bestDist <= allowed)) {
+      expect.fail(`${what}: no match for ${e.re}${e.im >= 0 ? "+" : ""}${e.im}j; nearest is ${bestDist.toExponential(3)} away, allowed ${allowed.toExponential(3)}`);
+    }
+    remaining.splice(best, 1);
+  }
+}
+
+/**
+ * Backward error of an orthogonal similarity A ≈ Q·T·Qᵀ: relative residual
+ * ‖A − Q T Qᵀ‖_F / ‖A‖_F (absolute when A = 0) and loss of orthogonality ‖QᵀQ − I‖_F.
+ */
+export function orthogonalSimilarityErrors(A: MatrixLike, Q: MatrixLike, T: MatrixLike): { residual: number; orthogonality: number } {
+  const a = toRows(A);
+  const q = toRows(Q);
+  const t = toRows(T);
+  const n = a.length;
+  const qt: number[][] = a.map(() => new Array<number>(n).fill(0));
+  for (let i = 0; i < n; i++) for (let k = 0; k < n; k++) { const v = q[i]![k]!; if (v !== 0) for (let j = 0; j < n; j++) qt[i]![j]! += v * t[k]![j]!; }
+  let res = 0;
+  let orth = 0;
+  for (let i = 0; i < n; i++) {
+    for (let j = 0; j < n; j++) {
+      let s = 0;
+      let o = 0;
+      for (let k = 0; k < n; k++) { s += qt[i]![k]! * q[j]![k]!; o += q[k]![i]! * q[k]![j]!; }
+      res += (a[i]![j]! - s) ** 2;
+      orth += (o - (i === j ? 1 : 0)) ** 2;
+    }
+  }
+  const normA = frobenius(a);
+  return { residual: normA > 0 ? Math.sqrt(res) / normA : Math.sqrt(res), orthogonality: Math.sqrt(orth) };
+}
+
+/** Deterministic pseudo-random rows×cols matrix with entries in [−0.5, 0.5) (Park–Miller minimal standard generator). */
+export function seededMatrix(rows: number, cols: number, seed: number): number[][] {
+  let s = (Math.abs(Math.floor(seed)) % 2147483646) + 1;
+  const next = (): number => {
+    s = (s * 16807) % 2147483647;
+    return s / 2147483647 - 0.5;
+  };
+  return Array.from({ length: rows }, () => Array.from({ length: cols }, next));
+}
+
+/**
+ * T is upper quasi-triangular in standard form: exact zeros below the first subdiagonal, no two
+ * consecutive nonzero subdiagonal entries, each 2×2 block with equal diagonal entries and
+ * off-diagonal entries of opposite sign; `eigenvalues` (if given) follow the diagonal, pairs
+ * with the positive imaginary part first, matching the blocks to `tol` relative.
+ */
+export function expectStandardQuasiTriangular(T: MatrixLike, eigenvalues?: ComplexLike[], tol = 1e-12): void {
+  const t = toRows(T);
+  const n = t.length;
+  for (let i = 2; i < n; i++) for (let j = 0; j < i - 1; j++) {
+    if (t[i]![j] !== 0) expect.fail(`T[${i}][${j}] = ${t[i]![j]} is below the subdiagonal but not zero`);
+  }
+  for (let i = 0; i < n; i++) {
+    const isPair = i + 1 < n && t[i + 1]![i] !== 0;
+    if (isPair) {
+      if (i + 2 < n && t[i + 2]![i + 1] !== 0) expect.fail(`T has consecutive nonzero subdiagonal entries at rows ${i + 1}, ${i + 2}`);
+      const a = t[i]![i]!, b = t[i]![i + 1]!, c = t[i + 1]![i]!, d = t[i + 1]![i + 1]!;
+      if (a !== d) expect.fail(`2×2 block at ${i}: diagonal entries ${a} and ${d} differ`);
+      if (!(b * c < 0)) expect.fail(`2×2 block at ${i}: off-diagonal entries ${b}, ${c} do not have opposite signs`);
+      if (eigenvalues) {
+        const im = Math.sqrt(Math.abs(b)) * Math.sqrt(Math.abs(c));
+        const scale = Math.max(1, Math.hypot(a, im));
+        const e0 = eigenvalues[i]!, e1 = eigenvalues[i + 1]!;
+        if (!(Math.abs(e0.re - a) <= tol * scale && Math.abs(e0.im - im) <= tol * scale && Math.abs(e1.re - a) <= tol * scale && Math.abs(e1.im + im) <= tol * scale)) {
+          expect.fail(`eigenvalues ${i}, ${i + 1} (${e0.re}±${e0.im}i) do not match the block ${a} ± ${im}i (positive part first)`);
+        }
+      }
+      i++;
+    } else if (eigenvalues) {
+      const e = eigenvalues[i]!;
+      if (!(Math.abs(e.re - t[i]![i]!) <= tol * Math.max(1, Math.abs(t[i]![i]!)) && e.im === 0)) {
+        expect.fail(`eigenvalue ${i} = ${e.re}+${e.im}i does not match the diagonal entry ${t[i]![i]}`);
+      }
+    }
+  }
+}
