@@ -1,0 +1,8 @@
+/**
+ * The preload script (bundled to dist/main/preload.cjs, format cjs, electron external: a
+ * sandboxed preload cannot be an ES module). Exposes exactly one object, `window.loopwright`.
+ */
+import { contextBridge, ipcRenderer } from "electron";
+import { createPreloadApi } from "./createPreloadApi";
+
+contextBridge.exposeInMainWorld("loopwright", createPreloadApi(ipcRenderer));
