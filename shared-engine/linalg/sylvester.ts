@@ -1,0 +1,276 @@
+/**
+ * Sylvester equation A X + X B = C by the Bartels–Stewart method, and the quasi-triangular
+ * kernel it shares with the Lyapunov solvers (continuous: S Y + Y T = F; discrete/Stein:
+ * S Y T − Y = F).
+ */
+import { Matrix } from "ml-matrix";
+import { EngineError } from "../errors";
+import type { Complex } from "./complex";
+import { allFinite, frobeniusRowMajor, multiply, transpose } from "./denseKernels";
+import { realSchur } from "./schur";
+import { requireFinite, requireSquareFinite, shapeOf, toFloat64, fromFloat64 } from "./validate";
+
+/** Which quasi-triangular equation the kernel solves. */
+export type QuasiTriangularEquation = "sylvester" | "stein";
+
+/** Labels used in the "singular" error message of the kernel. */
+export interface SingularLabels {
+  equation: string; // e.g. "A X + X B = C"
+  first: string; // owner of S's eigenvalues, e.g. "A"
+  second: string; // owner of T's eigenvalues, e.g. "B"
+}
+
+/** Starts of the diagonal blocks of an upper quasi-triangular n×n row-major matrix. */
+function blockStarts(t: Float64Array, n: number): number[] {
+  const starts: number[] = [];
+  for (let i = 0; i < n; ) {
+    starts.push(i);
+    i += i + 1 < n && t[(i + 1) * n + i] !== 0 ? 2 : 1;
+  }
+  return starts;
+}
+
+/** Eigenvalues of the 1×1 or 2×2 diagonal block at i0 (size p). */
+function blockEigenvalues(t: Float64Array, n: number, i0: number, p: number): Complex[] {
+  if (p === 1) return [{ re: t[i0 * n + i0]!, im: 0 }];
+  const a = t[i0 * n + i0]!, b = t[i0 * n + i0 + 1]!, c = t[(i0 + 1) * n + i0]!, d = t[(i0 + 1) * n + i0 + 1]!;
+  const half = 0.5 * (a + d);
+  const disc = 0.25 * (a - d) * (a - d) + b * c;
+  if (disc >= 0) return [{ re: half + Math.sqrt(disc), im: 0 }, { re: half - Math.sqrt(disc), im: 0 }];
+  const im = Math.sqrt(-disc);
+  return [{ re: half, im }, { re: half, im: -im }];
+}
+
+/**
+ * Solves the p×q block equation (p, q ∈ {1, 2}) in place in `r` (row-major p×q):
+ * sylvester: Sᵢᵢ Z + Z Tⱼⱼ = R; stein: Sᵢᵢ Z Tⱼⱼ − Z = R. Forms the pq×pq Kronecker matrix and
+ * uses Gaussian elimination with complete pivoting (as LAPACK dlasy2 does for these blocks).
+ * Returns the smallest pivot magnitude (0 ⇒ not solved).
+ */
+function solveSmallBlock(
+  kind: QuasiTriangularEquation, s: Float64Array, n: number, i0: number, p: number,
+  t: Float64Array, m: number, j0: number, q: number, r: Float64Array, threshold: number,
+): number {
+  const N = p * q;
+  const M = new Float64Array(N * N);
+  for (let ri = 0; ri < p; ri++) {
+    for (let ci = 0; ci < q; ci++) {
+      const row = ri * q + ci;
+      for (let rj = 0; rj < p; rj++) {
+        for (let cj = 0; cj < q; cj++) {
+          const col = rj * q + cj;
+          const sv = s[(i0 + ri) * n + i0 + rj]!;
+          const tv = t[(j0 + cj) * m + j0 + ci]!; // T[c', c]
+          let v: number;
+          if (kind === "sylvester") v = (ci === cj ? sv : 0) + (ri === rj ? tv : 0);
+          else v = sv * tv - (row === col ? 1 : 0);
+          M[row * N + col] = v;
+        }
+      }
+    }
+  }
+  const perm = [0, 1, 2, 3].slice(0, N); // column permutation
+  let minPivot = Infinity;
+  for (let k = 0; k < N; k++) {
+    let bi = k, bj = k, best = -1;
+    for (let i = k; i < N; i++) for (let j = k; j < N; j++) {
+      const v = Math.abs(M[i * N + j]!);
+      if (v > best) { best = v; bi = i; bj = j; }
+    }
+    minPivot = Math.min(minPivot, best);
+    if (!(best > threshold)) return best;
+    if (bi !== k) {
+      for (let j = 0; j < N; j++) { const x = M[k * N + j]!; M[k * N + j] = M[bi * N + j]!; M[bi * N + j] = x; }
+      const x = r[k]!; r[k] = r[bi]!; r[bi] = x;
+    }
+    if (bj !== k) {
+      for (let i = 0; i < N; i++) { const x = M[i * N + k]!; M[i * N + k] = M[i * N + bj]!; M[i * N + bj] = x; }
+      const x = perm[k]!; perm[k] = perm[bj]!; perm[bj] = x;
+    }
+    for (let i = k + 1; i < N; i++) {
+      const l = M[i * N + k]! / M[k * N + k]!;
+      for (let j = k + 1; j < N; j++) M[i * N + j] -= l * M[k * N + j]!;
+      r[i] -= l * r[k]!;
+    }
+  }
+  const z = new Float64Array(N);
+  for (let i = N - 1; i >= 0; i--) {
+    let v = r[i]!;
+    for (let j = i + 1; j < N; j++) v -= M[i * N + j]! * z[j]!;
+    z[i] = v / M[i * N + i]!;
+  }
+  for (let k = 0; k < N; k++) r[perm[k]!] = z[k]!;
+  return minPivot;
+}
+
+/**
+ * Kernel: solves S Y + Y T = F ("sylvester") or S Y T − Y = F ("stein") for Y, in place in f
+ * (row-major n×m), with S (n×n) and T (m×m) upper quasi-triangular (real Schur forms).
+ * Column blocks of T are taken left to right, row blocks of S bottom to top (Bartels & Stewart
+ * 1972, §2; Barraud 1977 for the Stein form). Throws "singular" when a block equation's
+ * smallest pivot is ≤ `threshold`, naming the offending eigenvalues.
+ */
+export function solveQuasiTriangularInPlace(
+  kind: QuasiTriangularEquation, s: Float64Array, n: number, t: Float64Array, m: number,
+  f: Float64Array, threshold: number, labels: SingularLabels,
+): void {
+  const rowBlocks = blockStarts(s, n);
+  const colBlocks = blockStarts(t, m);
+  const rhs = new Float64Array(4);
+  const tmp = new Float64Array(4);
+  // Work on Yᵀ (row j of yt is column j of Y) so every inner loop below runs over contiguous
+  // memory: the substitution is column-oriented.
+  const yt = transpose(f, n, m);
+  const w = new Float64Array(2 * n);
+  for (let jb = 0; jb < colBlocks.length; jb++) {
+    const j0 = colBlocks[jb]!;
+    const q = (colBlocks[jb + 1] ?? m) - j0;
+    // Step 1: move the already-solved columns to the right-hand side.
+    // sylvester: F_j −= Y[:, :j0] T[:j0, j];  stein: F_j −= S (Y[:, :j0] T[:j0, j]).
+    if (j0 > 0) {
+      w.fill(0);
+      for (let c = 0; c < q; c++) {
+        const wo = c * n;
+        for (let k = 0; k < j0; k++) {
+          const tkc = t[k * m + j0 + c]!;
+          if (tkc === 0) continue;
+          const ko = k * n;
+          for (let r = 0; r < n; r++) w[wo + r] += tkc * yt[ko + r]!;
+        }
+      }
+      for (let c = 0; c < q; c++) {
+        const wo = c * n;
+        const yo = (j0 + c) * n;
+        if (kind === "sylvester") {
+          for (let r = 0; r < n; r++) yt[yo + r] -= w[wo + r]!;
+        } else {
+          for (let r = 0; r < n; r++) {
+            // S is upper quasi-triangular: row r has nonzeros from column r−1 on.
+            let v = 0;
+            const so = r * n;
+            for (let k = r > 0 ? r - 1 : 0; k < n; k++) v += s[so + k]! * w[wo + k]!;
+            yt[yo + r] -= v;
+          }
+        }
+      }
+    }
+    // Step 2: back substitution over the row blocks of S, bottom to top.
+    for (let ib = rowBlocks.length - 1; ib >= 0; ib--) {
+      const i0 = rowBlocks[ib]!;
+      const p = (rowBlocks[ib + 1] ?? n) - i0;
+      for (let a = 0; a < p; a++) {
+        const so = (i0 + a) * n;
+        for (let c = 0; c < q; c++) {
+          const yo = (j0 + c) * n;
+          let v = 0; // (S[i, below] Y[below, j])[a][c]
+          for (let k = i0 + p; k < n; k++) v += s[so + k]! * yt[yo + k]!;
+          rhs[a * q + c] = v;
+        }
+      }
+      if (kind === "stein") {
+        // the solved part enters multiplied by T_jj: (S[i, below] Y[below, j]) T_jj
+        for (let k = 0; k < p * q; k++) tmp[k] = rhs[k]!;
+        for (let a = 0; a < p; a++) for (let c = 0; c < q; c++) {
+          let v = 0;
+          for (let cc = 0; cc < q; cc++) v += tmp[a * q + cc]! * t[(j0 + cc) * m + j0 + c]!;
+          rhs[a * q + c] = v;
+        }
+      }
+      for (let a = 0; a < p; a++) for (let c = 0; c < q; c++) rhs[a * q + c] = yt[(j0 + c) * n + i0 + a]! - rhs[a * q + c]!;
+      const pivot = solveSmallBlock(kind, s, n, i0, p, t, m, j0, q, rhs, threshold);
+      if (!(pivot > threshold)) throwSingular(kind, s, n, i0, p, t, m, j0, q, pivot, threshold, labels);
+      for (let a = 0; a < p; a++) for (let c = 0; c < q; c++) yt[(j0 + c) * n + i0 + a] = rhs[a * q + c]!;
+    }
+  }
+  for (let r = 0; r < n; r++) for (let c = 0; c < m; c++) f[r * m + c] = yt[c * n + r]!;
+}
+
+function throwSingular(
+  kind: QuasiTriangularEquation, s: Float64Array, n: number, i0: number, p: number,
+  t: Float64Array, m: number, j0: number, q: number, pivot: number, threshold: number, labels: SingularLabels,
+): never {
+  const ls = blockEigenvalues(s, n, i0, p);
+  const mu = blockEigenvalues(t, m, j0, q);
+  let best = { l: ls[0]!, u: mu[0]!, gap: Infinity };
+  for (const l of ls) for (const u of mu) {
+    const gap = kind === "sylvester"
+      ? Math.hypot(l.re + u.re, l.im + u.im)
+      : Math.hypot(l.re * u.re - l.im * u.im - 1, l.re * u.im + l.im * u.re);
+    if (gap < best.gap) best = { l, u, gap };
+  }
+  const fmt = (z: Complex) => (z.im === 0 ? `${z.re.toPrecision(6)}` : `${z.re.toPrecision(6)}${z.im >= 0 ? "+" : "−"}${Math.abs(z.im).toPrecision(6)}i`);
+  const relation = kind === "sylvester" ? "λ + μ ≈ 0" : "λ·μ ≈ 1";
+  throw new EngineError(
+    "singular",
+    `${labels.equation} is singular: eigenvalue λ = ${fmt(best.l)} of ${labels.first} and μ = ${fmt(best.u)} of ${labels.second} satisfy ${relation} ` +
+      `(|${kind === "sylvester" ? "λ + μ" : "λμ − 1"}| = ${best.gap.toExponential(2)}, threshold ${threshold.toExponential(2)})`,
+    { eigenvalueFirst: best.l, eigenvalueSecond: best.u, gap: best.gap, pivot, threshold },
+  );
+}
+
+function requireMatrix(value: unknown, name: string): Matrix {
+  if (!(value instanceof Matrix)) throw new EngineError("invalid-argument", `${name} must be a Matrix`, { argument: name });
+  return value;
+}
+
+/**
+ * Computes X: n×m solving A X + X B = C for A: n×n, B: m×m, C: n×m.
+ *
+ * Requires: A, B square, finite, non-empty; C finite n×m; λᵢ(A) + μⱼ(B) ≠ 0 for all i, j (the
+ * equation is then uniquely solvable).
+ *
+ * Method: R. H. Bartels & G. W. Stewart, "Solution of the matrix equation AX + XB = C"
+ * (Algorithm 432), Comm. ACM 15(9):820–826, 1972: real Schur forms A = U S Uᵀ, B = V T Vᵀ
+ * (Francis QR, `realSchur`), then S Y + Y T = UᵀCV by block back substitution over the 1×1/2×2
+ * diagonal blocks (each small block system solved by complete pivoting), and X = U Y Vᵀ.
+ *
+ * Cost: two Schur decompositions (≈ 25n³ + 25m³ flops), the transformations
+ * (≈ 2nm(n+m)·2 flops) and the triangular solve (≈ nm(n+m) flops). Memory O(n² + m² + nm).
+ * No iteration beyond realSchur's (capped at 30·max(10, size) sweeps).
+ *
+ * Accuracy: the relative residual ‖AX + XB − C‖_F / ((‖A‖_F + ‖B‖_F)‖X‖_F + ‖C‖_F) is a small
+ * multiple of (n+m)·ε (Higham, "Accuracy and Stability of Numerical Algorithms", 2nd ed., §16.2);
+ * the forward error is bounded by about that residual divided by sep(A, −B) ≤ min|λᵢ + μⱼ|, so
+ * when the separation is small relative to ‖A‖_F + ‖B‖_F, X loses log₁₀((‖A‖_F+‖B‖_F)/sep)
+ * digits. Tests: relative residual ≤ 1e-12 on well-conditioned problems. Output checked finite.
+ *
+ * Errors: "singular" when a block pivot is ≤ 10·max(n, m)·ε·(‖A‖_F + ‖B‖_F), i.e. some
+ * λᵢ(A) + μⱼ(B) ≈ 0 (details: eigenvalueFirst, eigenvalueSecond, gap); "shape-mismatch",
+ * "empty", "non-finite", "invalid-argument" for bad inputs; "no-convergence" from realSchur;
+ * "non-finite" if X overflows.
+ *
+ * Example: A = [[1, 0], [0, 2]], B = [[3]], C = [[4], [10]] gives X = [[1], [2]];
+ * check ‖A X + X B − C‖_F < 1e-15.
+ */
+export function solveSylvester(A: Matrix, B: Matrix, C: Matrix): Matrix {
+  requireMatrix(A, "A");
+  requireMatrix(B, "B");
+  requireMatrix(C, "C");
+  requireSquareFinite(A, "A");
+  requireSquareFinite(B, "B");
+  const n = A.rows;
+  const m = B.rows;
+  if (C.rows !== n || C.columns !== m) {
+    throw new EngineError(
+      "shape-mismatch",
+      `C must be ${n}×${m} (rows of A × columns of B; A is ${shapeOf(A)}, B is ${shapeOf(B)}, C is ${shapeOf(C)})`,
+      { arguments: ["A", "B", "C"] },
+    );
+  }
+  requireFinite(C, "C");
+  const sa = realSchur(A);
+  const sb = realSchur(B);
+  const s = toFloat64(sa.T);
+  const u = toFloat64(sa.Q);
+  const t = toFloat64(sb.T);
+  const v = toFloat64(sb.Q);
+  // F = Uᵀ C V
+  const f = multiply(multiply(transpose(u, n, n), toFloat64(C), n, n, m), v, n, m, m);
+  const threshold = 10 * Math.max(n, m) * Number.EPSILON * (frobeniusRowMajor(toFloat64(A)) + frobeniusRowMajor(toFloat64(B)));
+  solveQuasiTriangularInPlace("sylvester", s, n, t, m, f, threshold, { equation: "A X + X B = C", first: "A", second: "B" });
+  const x = multiply(multiply(u, f, n, n, m), transpose(v, m, m), n, m, m);
+  if (!allFinite(x)) {
+    throw new EngineError("non-finite", "the solution X of A X + X B = C overflows (the equation is nearly singular)", {});
+  }
+  return fromFloat64(x, n, m);
+}
