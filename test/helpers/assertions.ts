@@ -150,3 +150,10 @@ export function expectStandardQuasiTriangular(T: MatrixLike, eigenvalues?: Compl
     }
   }
 }
+
+/** Deterministic well-posed state-space data for design tests: entries are integers/4 in [−5, 5]. */
+export function quarterIntegerMatrix(entries: number[], rows: number, cols: number): number[][] {
+  const out: number[][] = [];
+  for (let i = 0; i < rows; i++) out.push(entries.slice(i * cols, (i + 1) * cols).map((v) => v / 4));
+  return out;
+}
