@@ -41,6 +41,11 @@ def op_fn(op, a):
         w = np.array(a["w"], dtype=float)
         system = sig.StateSpace(A, B, C, D)
         return lambda: sig.freqresp(system, w=w)
+    if op == "lsim":
+        B, C, D = (np.array(a[k], dtype=float) for k in ("B", "C", "D"))
+        t = np.array(a["t"], dtype=float)
+        u = np.ones(len(t))
+        return lambda: sig.lsim((A, B, C, D), u, t, interp=False)
     raise ValueError(f"unknown op {op}")
 
 
