@@ -1,0 +1,322 @@
+/**
+ * Row-major Float64Array kernels shared by the QZ iteration (qz.ts) and the reordering of the
+ * generalized real Schur form (qzReorder.ts). Internal to linalg/: nothing here validates input.
+ *
+ * Conventions. The pencil under transformation is held as S (n×n) and T (n×n), row-major. The
+ * orthogonal factors are held TRANSPOSED (QT = Qᵀ, ZT = Zᵀ, row-major) so that both left and
+ * right transformations update contiguous rows of the accumulators:
+ *   left  S ← G S, T ← G T   ⇒ Qᵀ ← G Qᵀ   (keeps A = Q S Zᵀ)
+ *   right S ← S Gᵀ, T ← T Gᵀ ⇒ Zᵀ ← G Zᵀ   (rotCols applies Gᵀ on the right)
+ * A rotation with (c, s) on indices (i, j) maps x_i ← c·x_i + s·x_j, x_j ← −s·x_i + c·x_j.
+ */
+
+import { Matrix } from "ml-matrix";
+import type { Complex } from "./complex";
+import type { GeneralizedEigenvalue } from "./qz";
+
+export const SAFE_MIN = 2.2250738585072014e-308;
+export const ULP = Number.EPSILON;
+
+/** The pencil and (optionally) the transposed orthogonal factors being accumulated. */
+export interface PencilWork {
+  n: number;
+  S: Float64Array;
+  T: Float64Array;
+  QT: Float64Array | null;
+  ZT: Float64Array | null;
+}
+
+/** Scratch for `givens`: [c, s, r]. Reused to avoid allocating in inner loops. */
+export const rot = new Float64Array(3);
+
+/** (c, s, r) with c·f + s·g = r and −s·f + c·g = 0 (Golub & Van Loan, Matrix Computations, §5.1.8). */
+export function givens(f: number, g: number): void {
+  if (g === 0) {
+    rot[0] = 1; rot[1] = 0; rot[2] = f;
+    return;
+  }
+  if (f === 0) {
+    rot[0] = 0; rot[1] = 1; rot[2] = g;
+    return;
+  }
+  let r = Math.sqrt(f * f + g * g);
+  // The plain formula under/overflows only for |f|,|g| outside ~1e±154; fall back to hypot then.
+  if (r === 0 || r === Infinity) r = Math.hypot(f, g);
+  rot[0] = f / r; rot[1] = g / r; rot[2] = r;
+}
+
+/** Rotates rows i and j of M (n columns) on columns [c0, c1). */
+export function rotRows(M: Float64Array, n: number, i: number, j: number, c: number, s: number, c0: number, c1: number): void {
+  const oi = i * n, oj = j * n;
+  for (let k = c0; k < c1; k++) {
+    const x = M[oi + k], y = M[oj + k];
+    M[oi + k] = c * x + s * y;
+    M[oj + k] = c * y - s * x;
+  }
+}
+
+/** Rotates columns i and j of M (n columns) on rows [r0, r1). */
+export function rotCols(M: Float64Array, n: number, i: number, j: number, c: number, s: number, r0: number, r1: number): void {
+  for (let k = r0, o = r0 * n; k < r1; k++, o += n) {
+    const x = M[o + i], y = M[o + j];
+    M[o + i] = c * x + s * y;
+    M[o + j] = c * y - s * x;
+  }
+}
+
+/** Scratch for `house3`: [tau, v0, v1, v2, beta]. */
+export const refl = new Float64Array(5);
+
+/**
+ * Householder reflector H = I − τ·v·vᵀ with H·(…) = β·e_p, where p is the position of `alpha`
+ * in the 3-vector. `alpha` is the kept entry, x1 and x2 the two entries to annihilate; the
+ * caller places v (unit in alpha's slot). Method: LAPACK-style dlarfg (Golub & Van Loan §5.1.3).
+ */
+export function house3(alpha: number, x1: number, x2: number): void {
+  if (x1 === 0 && x2 === 0) {
+    refl[0] = 0; refl[1] = 0; refl[2] = 0; refl[4] = alpha;
+    return;
+  }
+  let xnorm = Math.sqrt(x1 * x1 + x2 * x2);
+  // The squares under/overflow only outside ~1e±154; hypot is exact but slower.
+  if (xnorm === 0 || xnorm === Infinity) xnorm = Math.hypot(x1, x2);
+  let norm = Math.sqrt(alpha * alpha + xnorm * xnorm);
+  if (norm === Infinity || norm === 0) norm = Math.hypot(alpha, x1, x2);
+  const beta = alpha >= 0 ? -norm : norm;
+  const scal = 1 / (alpha - beta);
+  refl[0] = (beta - alpha) / beta;
+  refl[1] = x1 * scal;
+  refl[2] = x2 * scal;
+  refl[4] = beta;
+}
+
+/** Scratch for `eigenvalues2x2`: [re1, im1, re2, im2]; im1 ≥ 0 and im2 = −im1. */
+export const eig2 = new Float64Array(4);
+
+/**
+ * Eigenvalues of the real 2×2 matrix [[a, b], [c, d]] without overflow in the discriminant and
+ * without cancellation in the smaller real root (the formulas of LAPACK dlanv2: Bai & Demmel,
+ * "On swapping diagonal blocks in real Schur form", Linear Algebra Appl. 186, 1993).
+ * Returns true when the eigenvalues are real.
+ */
+export function eigenvalues2x2(a: number, b: number, c: number, d: number): boolean {
+  const p = 0.5 * (a - d);
+  const bcmax = Math.max(Math.abs(b), Math.abs(c));
+  const bcmis = Math.min(Math.abs(b), Math.abs(c)) * Math.sign(b) * Math.sign(c);
+  const scale = Math.max(Math.abs(p), bcmax);
+  if (scale === 0) {
+    eig2[0] = d; eig2[1] = 0; eig2[2] = d; eig2[3] = 0;
+    return true;
+  }
+  const z = (p / scale) * p + (bcmax / scale) * bcmis;
+  if (z >= 0) {
+    const zz = p + (p >= 0 ? 1 : -1) * Math.sqrt(scale) * Math.sqrt(z);
+    if (zz === 0) {
+      eig2[0] = d; eig2[2] = d;
+    } else {
+      eig2[0] = d + zz;
+      eig2[2] = d - (bcmax / zz) * bcmis;
+    }
+    eig2[1] = 0; eig2[3] = 0;
+    return true;
+  }
+  const im = Math.sqrt(scale) * Math.sqrt(-z);
+  eig2[0] = d + p; eig2[1] = im; eig2[2] = d + p; eig2[3] = -im;
+  return false;
+}
+
+/** Left rotation of rows i, j of S and T on columns [c0, c1) and of Qᵀ on all columns. */
+export function rotateLeft(w: PencilWork, i: number, j: number, c: number, s: number, c0: number, c1: number): void {
+  rotRows(w.S, w.n, i, j, c, s, c0, c1);
+  rotRows(w.T, w.n, i, j, c, s, c0, c1);
+  if (w.QT) rotRows(w.QT, w.n, i, j, c, s, 0, w.n);
+}
+
+/** Right rotation of columns i, j of S and T on rows [r0, r1) and of Zᵀ (rows i, j). */
+export function rotateRight(w: PencilWork, i: number, j: number, c: number, s: number, r0: number, r1: number): void {
+  rotCols(w.S, w.n, i, j, c, s, r0, r1);
+  rotCols(w.T, w.n, i, j, c, s, r0, r1);
+  if (w.ZT) rotRows(w.ZT, w.n, i, j, c, s, 0, w.n);
+}
+
+/** Negates row j of S and T (columns [c0, c1)) and of Qᵀ, so that T[j][j] becomes ≥ 0. */
+export function negateRow(w: PencilWork, j: number, c0: number, c1: number): void {
+  const o = j * w.n;
+  for (let k = c0; k < c1; k++) {
+    w.S[o + k] = 0 - w.S[o + k];
+    w.T[o + k] = 0 - w.T[o + k];
+  }
+  if (w.QT) for (let k = 0; k < w.n; k++) w.QT[o + k] = 0 - w.QT[o + k];
+}
+
+/**
+ * Standardises the 2×2 diagonal block at rows/columns j, j+1 (whose subdiagonal neighbours
+ * are already zero). Rows are updated on columns [j, colEnd), columns on rows [rowStart, j+2).
+ *
+ * Complex pair: T's block is made diagonal with positive entries by a 2×2 SVD (a rotation
+ * that symmetrises, then a Jacobi rotation), the convention of the generalized real Schur
+ * form in Moler & Stewart (1973) and LAPACK dlagv2. Returns 2.
+ * Real pair: the block is split into two 1×1 blocks by the exact-shift step: a right rotation
+ * whose first column spans the null vector of (A − λT), then a left rotation that zeroes the
+ * (2,1) entries (choosing whichever of A·z, T·z is larger for accuracy, as dlagv2 does).
+ * Returns 1 (the first 1×1 block).
+ */
+export function standardizeBlock2(w: PencilWork, j: number, rowStart: number, colEnd: number): 1 | 2 {
+  const { n, S, T } = w;
+  const j0 = j * n + j, j1 = j0 + n; // offsets of [j][j] and [j+1][j]
+  // 2×2 SVD of T's block: symmetrise, then diagonalise (Golub & Van Loan §8.5.2 Jacobi).
+  let a = T[j0], b = T[j0 + 1], c = T[j1], d = T[j1 + 1];
+  const theta = Math.atan2(c - b, a + d);
+  const c1 = Math.cos(theta), s1 = Math.sin(theta);
+  rotateLeft(w, j, j + 1, c1, s1, j, colEnd);
+  a = T[j0]; b = T[j0 + 1]; d = T[j1 + 1];
+  const phi = 0.5 * Math.atan2(2 * b, a - d);
+  const c2 = Math.cos(phi), s2 = Math.sin(phi);
+  rotateLeft(w, j, j + 1, c2, s2, j, colEnd);
+  rotateRight(w, j, j + 1, c2, s2, rowStart, j + 2);
+  T[j0 + 1] = 0; T[j1] = 0;
+  if (T[j0] < 0) negateRow(w, j, j, colEnd);
+  if (T[j1 + 1] < 0) negateRow(w, j + 1, j, colEnd);
+  const d1 = T[j0], d2 = T[j1 + 1];
+  if (d1 > 0 && d2 > 0) {
+    const real = eigenvalues2x2(S[j0] / d1, S[j0 + 1] / d2, S[j1] / d1, S[j1 + 1] / d2);
+    if (!real) return 2;
+  }
+  splitRealBlock(w, j, rowStart, colEnd);
+  return 1;
+}
+
+/** Splits a 2×2 block with real eigenvalues (T's block diagonal and ≥ 0) into two 1×1 blocks. */
+function splitRealBlock(w: PencilWork, j: number, rowStart: number, colEnd: number): void {
+  const { n, S, T } = w;
+  const j0 = j * n + j, j1 = j0 + n;
+  const d1 = T[j0], d2 = T[j1 + 1];
+  // λ: a generalized eigenvalue of the block. With d1 = 0 or d2 = 0 the block has an infinite
+  // eigenvalue; then the null vector of T (λ = ∞, i.e. of T itself) is used instead.
+  let m00: number, m01: number, m10: number, m11: number;
+  if (d1 > 0 && d2 > 0) {
+    eigenvalues2x2(S[j0] / d1, S[j0 + 1] / d2, S[j1] / d1, S[j1 + 1] / d2);
+    const lambda = eig2[0];
+    m00 = S[j0] - lambda * d1; m01 = S[j0 + 1]; m10 = S[j1]; m11 = S[j1 + 1] - lambda * d2;
+  } else {
+    m00 = T[j0]; m01 = T[j0 + 1]; m10 = T[j1]; m11 = T[j1 + 1];
+  }
+  // Null vector z of M from its larger row: row (p, q) ⟂ z = (−q, p).
+  let zx: number, zy: number;
+  if (Math.hypot(m00, m01) >= Math.hypot(m10, m11)) { zx = -m01; zy = m00; } else { zx = -m11; zy = m10; }
+  const zn = Math.hypot(zx, zy);
+  if (zn === 0) { zx = 1; zy = 0; } else { zx /= zn; zy /= zn; }
+  // Right rotation with first column z: new column j = zx·col j + zy·col j+1.
+  rotateRight(w, j, j + 1, zx, zy, rowStart, j + 2);
+  // Left rotation zeroing the (2,1) entries; use the better scaled of S·z and T·z.
+  const sScale = Math.abs(S[j0]) + Math.abs(S[j0 + 1]) + Math.abs(S[j1]) + Math.abs(S[j1 + 1]);
+  const tScale = Math.abs(T[j0]) + Math.abs(T[j0 + 1]) + Math.abs(T[j1]) + Math.abs(T[j1 + 1]);
+  const sCol = (Math.abs(S[j0]) + Math.abs(S[j1])) / (sScale || 1);
+  const tCol = (Math.abs(T[j0]) + Math.abs(T[j1])) / (tScale || 1);
+  if (sCol >= tCol) givens(S[j0], S[j1]); else givens(T[j0], T[j1]);
+  rotateLeft(w, j, j + 1, rot[0], rot[1], j, colEnd);
+  S[j1] = 0; T[j1] = 0;
+  if (T[j0] < 0) negateRow(w, j, j, colEnd);
+  if (T[j1 + 1] < 0) negateRow(w, j + 1, j + 1, colEnd);
+}
+
+/** Frobenius norm of a flat array, scaled against overflow. */
+export function frobeniusNorm(M: Float64Array): number {
+  let scale = 0;
+  for (let k = 0; k < M.length; k++) scale = Math.max(scale, Math.abs(M[k]));
+  if (scale === 0 || !Number.isFinite(scale)) return scale;
+  let sum = 0;
+  for (let k = 0; k < M.length; k++) {
+    const v = M[k] / scale;
+    sum += v * v;
+  }
+  return scale * Math.sqrt(sum);
+}
+
+/** Row-major transpose copy of an n×n array. */
+export function transposeSquare(M: Float64Array, n: number): Float64Array {
+  const out = new Float64Array(n * n);
+  for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) out[j * n + i] = M[i * n + j];
+  return out;
+}
+
+/**
+ * Copies A and E (n×n) into one fresh buffer holding S, T and, when `withFactors`, Qᵀ = Zᵀ = I,
+ * plus 3n doubles of scratch. One allocation instead of six: for n ≤ 20 allocation and garbage
+ * collection otherwise cost more than the arithmetic.
+ */
+export function loadPencil(A: Matrix, E: Matrix, withFactors: boolean): PencilWork & { scratch: Float64Array } {
+  const n = A.rows, nn = n * n;
+  const blocks = withFactors ? 4 : 2;
+  const buffer = new Float64Array(blocks * nn + 3 * n);
+  const S = buffer.subarray(0, nn), T = buffer.subarray(nn, 2 * nn);
+  for (let i = 0; i < n; i++) {
+    for (let j = 0; j < n; j++) {
+      S[i * n + j] = A.get(i, j);
+      T[i * n + j] = E.get(i, j);
+    }
+  }
+  let QT: Float64Array | null = null, ZT: Float64Array | null = null;
+  if (withFactors) {
+    QT = buffer.subarray(2 * nn, 3 * nn);
+    ZT = buffer.subarray(3 * nn, 4 * nn);
+    for (let i = 0; i < n; i++) {
+      QT[i * n + i] = 1;
+      ZT[i * n + i] = 1;
+    }
+  }
+  return { n, S, T, QT, ZT, scratch: buffer.subarray(blocks * nn) };
+}
+
+/**
+ * A fresh n×n Matrix holding M (or Mᵀ when `transpose`), M row-major. Its rows are views of one
+ * new buffer owned by this Matrix alone (never of M), which avoids n separate allocations.
+ * This relies on ml-matrix 6 keeping rows in `data`; if that ever changes, the plain copy is used.
+ */
+export function matrixFromRowMajor(M: Float64Array, n: number, transpose: boolean): Matrix {
+  const own = new Float64Array(n * n);
+  if (transpose) {
+    for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) own[j * n + i] = M[i * n + j];
+  } else {
+    own.set(M.subarray(0, n * n));
+  }
+  const m = new Matrix(0, n) as unknown as { data: unknown; rows: number };
+  if (!Array.isArray(m.data)) {
+    const copy = new Matrix(n, n);
+    for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) copy.set(i, j, own[i * n + j]);
+    return copy;
+  }
+  const rows = new Array<Float64Array>(n);
+  for (let i = 0; i < n; i++) rows[i] = own.subarray(i * n, i * n + n);
+  m.data = rows;
+  m.rows = n;
+  return m as unknown as Matrix;
+}
+
+/**
+ * Reads alpha/beta from the diagonal blocks of a standardised form: a nonzero s_{j+1,j} marks a
+ * 2×2 block (T's block diagonal), anything else is a 1×1 block. Used by qz and reorderQz.
+ */
+export function eigenvaluesOfForm(S: Float64Array, T: Float64Array, n: number, bnorm: number): GeneralizedEigenvalue[] {
+  const infiniteTol = n * ULP * bnorm;
+  const out: GeneralizedEigenvalue[] = [];
+  const one = (alpha: Complex, beta: number): GeneralizedEigenvalue => {
+    const infinite = Math.abs(beta) <= infiniteTol;
+    return { alpha, beta, infinite, value: infinite ? null : { re: alpha.re / beta, im: alpha.im / beta } };
+  };
+  for (let j = 0; j < n; j++) {
+    if (j + 1 < n && S[(j + 1) * n + j] !== 0) {
+      const d1 = T[j * n + j], d2 = T[(j + 1) * n + j + 1];
+      const real = eigenvalues2x2(
+        S[j * n + j] / d1, S[j * n + j + 1] / d2, S[(j + 1) * n + j] / d1, S[(j + 1) * n + j + 1] / d2,
+      );
+      const re1 = eig2[0], im1 = eig2[1], re2 = eig2[2], im2 = eig2[3];
+      out.push(one({ re: re1 * d1, im: real ? 0 : im1 * d1 }, d1));
+      out.push(one({ re: re2 * d2, im: real ? 0 : im2 * d2 }, d2));
+      j++;
+    } else {
+      out.push(one({ re: S[j * n + j], im: 0 }, T[j * n + j]));
+    }
+  }
+  return out;
+}
