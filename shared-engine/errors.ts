@@ -19,6 +19,8 @@ export type EngineErrorKind =
   | "parse-error" // an expression or file could not be parsed
   | "validation" // a project file or record failed validation
   | "cancelled" // the caller cancelled a long request
+  | "conflict" // a save was based on an older revision than the stored one
+  | "storage" // the local database refused a write (quota, disk full, blocked)
   | "internal"; // a bug: an invariant failed (never a user error)
 
 export interface ErrorPayload {

@@ -5,6 +5,7 @@ import { formatComplex, formatTable } from "../../shared-engine/format";
 import { describeOptions, parseArgs, type OptionSpec } from "./args";
 import { readJsonArgument } from "./input";
 import { EXIT, usageError, type CliIo } from "./io";
+import { design, validate } from "./designCommands";
 
 export interface Command {
   name: string;
@@ -65,4 +66,4 @@ const call: Command = {
   },
 };
 
-export const commands: readonly Command[] = [info, eigenvaluesCommand, call];
+export const commands: readonly Command[] = [design, validate, info, eigenvaluesCommand, call];

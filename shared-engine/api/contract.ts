@@ -7,6 +7,10 @@
  * Web Worker client (browser mode). Both talk to the same dispatcher (`dispatcher.ts`).
  */
 import type { ErrorPayload } from "../errors";
+import type { PlantSpec, ProjectFile, RequirementSpec, SignOffSpec, VariantSpec } from "../project/format";
+import type { DesignRunResult, VariantResult } from "../project/result";
+
+export type { PlantSpec, ProjectFile, RequirementSpec, SignOffSpec, VariantSpec, DesignRunResult, VariantResult };
 
 export interface ComplexNumber {
   re: number;
@@ -25,6 +29,21 @@ export interface EngineMethods {
     params: { matrix: number[][] };
     result: { eigenvalues: ComplexNumber[] };
   };
+  /** Parses, migrates and validates project-file text; problems carry JSON paths. */
+  "project.load": {
+    params: { text: string };
+    result: { project: ProjectFile; warnings: { path: string; message: string }[]; fromVersion: number };
+  };
+  /** Designs one variant on one plant: the same pipeline as `loopwright design` and the sheet. */
+  "project.evaluateVariant": {
+    params: { plant: PlantSpec; variant: VariantSpec; requirements?: RequirementSpec[] };
+    result: VariantResult;
+  };
+  /** Designs every variant (or one) of a whole project given as data. */
+  "project.evaluate": {
+    params: { project: unknown; variant?: string };
+    result: DesignRunResult;
+  };
 }
 
 export type EngineMethod = keyof EngineMethods;
@@ -32,7 +51,7 @@ export type EngineParams<M extends EngineMethod> = EngineMethods[M]["params"];
 export type EngineResult<M extends EngineMethod> = EngineMethods[M]["result"];
 
 /** The method names, for validation at the process boundary. Keep in step with EngineMethods. */
-export const ENGINE_METHODS: readonly EngineMethod[] = ["engine.info", "linalg.eigenvalues"] as const;
+export const ENGINE_METHODS: readonly EngineMethod[] = ["engine.info", "linalg.eigenvalues", "project.load", "project.evaluateVariant", "project.evaluate"] as const;
 
 export function isEngineMethod(value: unknown): value is EngineMethod {
   return typeof value === "string" && (ENGINE_METHODS as readonly string[]).includes(value);

@@ -6,6 +6,7 @@
 import { EngineError } from "../errors";
 import { eigenvalues } from "../linalg";
 import { ENGINE_VERSION } from "../version";
+import { evaluateProject, evaluateVariant, loadProjectText, loadProjectValue } from "../project";
 import { ENGINE_METHODS, type EngineMethod, type EngineMethods, type Progress, isEngineMethod } from "./contract";
 import { requireMatrixParam, requireObjectParams } from "./params";
 
@@ -29,6 +30,31 @@ const handlers: { [M in EngineMethod]: Handler<M> } = {
     const p = requireObjectParams(params, "linalg.eigenvalues");
     const matrix = requireMatrixParam(p, "matrix", { square: true });
     return { eigenvalues: eigenvalues(matrix) };
+  },
+  "project.load": (params) => {
+    const p = requireObjectParams(params, "project.load");
+    if (typeof p.text !== "string") throw new EngineError("invalid-argument", "project.load: text must be the project file's text", { field: "text" });
+    const loaded = loadProjectText(p.text);
+    return { project: loaded.project, warnings: loaded.warnings, fromVersion: loaded.fromVersion };
+  },
+  "project.evaluateVariant": (params) => {
+    const p = requireObjectParams(params, "project.evaluateVariant");
+    // Validate plant and variant exactly as a project file would be, so errors carry JSON paths.
+    const loaded = loadProjectValue({
+      format: "loopwright-project",
+      version: 1,
+      name: "request",
+      plants: [p.plant],
+      variants: [p.variant],
+      ...(p.requirements !== undefined ? { requirements: p.requirements } : {}),
+    });
+    const { project } = loaded;
+    return evaluateVariant(project.plants[0]!, project.variants[0]!, { requirements: project.requirements });
+  },
+  "project.evaluate": (params) => {
+    const p = requireObjectParams(params, "project.evaluate");
+    if (p.variant !== undefined && typeof p.variant !== "string") throw new EngineError("invalid-argument", "project.evaluate: variant must be a variant id", { field: "variant" });
+    return evaluateProject(loadProjectValue(p.project), { variant: p.variant as string | undefined });
   },
 };
 

@@ -1,0 +1,124 @@
+// `loopwright design` and `loopwright validate` on the example projects. The golden files in
+// test/cli/golden/ are regression records of our own output (regenerate only on purpose, with
+// UPDATE_GOLDEN=1 npx vitest run test/cli/design.test.ts, and review the diff); the checks
+// against outside references live beside them and in test/engine/project/.
+import { readdirSync, readFileSync, writeFileSync, existsSync } from "node:fs";
+import { describe, expect, it } from "vitest";
+import { runCli, type CliIo } from "../../main/cli/cli";
+import type { DesignRunResult } from "../../shared-engine/project";
+
+const EXAMPLES = "assets/examples";
+const files = readdirSync(EXAMPLES).filter((f) => f.endsWith(".loopwright.json")).sort();
+
+async function cli(args: string[]): Promise<{ code: number; out: string; err: string }> {
+  let out = "";
+  let err = "";
+  const io: CliIo = {
+    stdout: (t) => { out += t; },
+    stderr: (t) => { err += t; },
+    readFile: async (path) => readFileSync(path, "utf8"),
+  };
+  return { code: await runCli(args, io), out, err };
+}
+
+/** Compares numbers to 1e-9 relative (last-bit differences across platforms are not regressions). */
+function expectSameJson(actual: unknown, golden: unknown, path = ""): void {
+  if (typeof golden === "number") {
+    expect(typeof actual, path).toBe("number");
+    const a = actual as number;
+    expect(Math.abs(a - golden) <= 1e-9 * Math.max(1, Math.abs(golden)), `${path}: ${a} vs golden ${golden}`).toBe(true);
+  } else if (Array.isArray(golden)) {
+    expect(Array.isArray(actual), path).toBe(true);
+    expect((actual as unknown[]).length, `${path} length`).toBe(golden.length);
+    golden.forEach((g, i) => expectSameJson((actual as unknown[])[i], g, `${path}[${i}]`));
+  } else if (golden !== null && typeof golden === "object") {
+    expect(Object.keys(actual as object).sort(), `${path} keys`).toEqual(Object.keys(golden).sort());
+    for (const [k, g] of Object.entries(golden)) expectSameJson((actual as Record<string, unknown>)[k], g, `${path}.${k}`);
+  } else {
+    expect(actual, path).toEqual(golden);
+  }
+}
+
+describe("loopwright design on the example projects", () => {
+  it("has at least three invented example projects, each labelled as invented and with two or more variants", () => {
+    expect(files.length).toBeGreaterThanOrEqual(3);
+    for (const f of files) {
+      const project = JSON.parse(readFileSync(`${EXAMPLES}/${f}`, "utf8")) as { name: string; description: string; variants: unknown[] };
+      expect(`${project.name} ${project.description}`).toMatch(/invented/i);
+      expect(project.variants.length).toBeGreaterThanOrEqual(2);
+    }
+  });
+
+  it.each(files)("designs every variant of %s and matches its golden JSON", async (file) => {
+    const r = await cli(["design", `${EXAMPLES}/${file}`, "--json"]);
+    expect(r.code, r.err).toBe(0);
+    const run = JSON.parse(r.out) as DesignRunResult;
+    expect(run.format).toBe("loopwright-design-result");
+    for (const v of run.variants) {
+      expect(v.error, `${v.id}: ${v.error?.message}`).toBeUndefined();
+      expect(v.gain ?? v.step ?? v.margins, `${v.id} computed something`).toBeDefined();
+    }
+    const golden = `test/cli/golden/${file.replace(".loopwright.json", ".design.json")}`;
+    if (process.env.UPDATE_GOLDEN === "1" || !existsSync(golden)) {
+      writeFileSync(golden, `${JSON.stringify(run, null, 2)}\n`);
+      if (process.env.UPDATE_GOLDEN !== "1") throw new Error(`golden file ${golden} was missing and has been written; review it and run again`);
+    }
+    expectSameJson(run, JSON.parse(readFileSync(golden, "utf8")));
+  });
+
+  it.each(files)("prints a readable report of %s with the safety caution", async (file) => {
+    const r = await cli(["design", `${EXAMPLES}/${file}`]);
+    expect(r.code).toBe(0);
+    expect(r.out).toMatch(/^Project: /);
+    expect(r.out).toMatch(/Variant /);
+    expect(r.out).toMatch(/Simulation is not validation/);
+  });
+
+  it("places the requested poles in the pole-placement example (the request itself is the reference)", async () => {
+    const r = await cli(["design", `${EXAMPLES}/positioning-stage.loopwright.json`, "--variant", "robust-poles", "--json"]);
+    const v = (JSON.parse(r.out) as DesignRunResult).variants[0]!;
+    const requested = [{ re: -4, im: 3 }, { re: -4, im: -3 }, { re: -5, im: 2 }, { re: -5, im: -2 }];
+    for (const p of requested) {
+      const nearest = Math.min(...v.closedLoopPoles!.map((q) => Math.hypot(q.re - p.re, q.im - p.im)));
+      expect(nearest).toBeLessThan(1e-9);
+    }
+  });
+
+  it("designs only the named variant with --variant, and exits 1 for an unknown one", async () => {
+    const one = await cli(["design", `${EXAMPLES}/queue-backlog.loopwright.json`, "--variant", "lqr-kalman", "--json"]);
+    expect((JSON.parse(one.out) as DesignRunResult).variants.map((v) => v.id)).toEqual(["lqr-kalman"]);
+    const none = await cli(["design", `${EXAMPLES}/queue-backlog.loopwright.json`, "--variant", "nope"]);
+    expect(none.code).toBe(1);
+    expect(none.err).toMatch(/No variant "nope"/);
+  });
+
+  it("--strict exits 1 when a requirement fails", async () => {
+    const plain = await cli(["design", `${EXAMPLES}/rack-temperature.loopwright.json`]);
+    const strict = await cli(["design", `${EXAMPLES}/rack-temperature.loopwright.json`, "--strict"]);
+    expect(plain.out).toMatch(/FAIL {2}requirement:gm/);
+    expect(plain.code).toBe(0);
+    expect(strict.code).toBe(1);
+  });
+});
+
+describe("loopwright validate", () => {
+  it.each(files)("accepts %s", async (file) => {
+    const r = await cli(["validate", `${EXAMPLES}/${file}`]);
+    expect(r.code).toBe(0);
+    expect(r.out).toMatch(/valid \(\d+ plants, \d+ variants\)/);
+  });
+
+  it("names every problem by its JSON path and exits 1", async () => {
+    const bad = JSON.parse(readFileSync(`${EXAMPLES}/queue-backlog.loopwright.json`, "utf8")) as { plants: { model: { B: number[][] } }[]; variants: { plant: string }[] };
+    bad.plants[0]!.model.B = [[0], [1], [2]];
+    bad.variants[1]!.plant = "missing";
+    let out = "";
+    const io: CliIo = { stdout: (t) => { out += t; }, stderr: (t) => { out += t; }, readFile: async () => JSON.stringify(bad) };
+    const code = await runCli(["validate", "bad.json", "--json"], io);
+    expect(code).toBe(1);
+    const verdict = JSON.parse(out) as { valid: boolean; problems: { path: string; message: string }[] };
+    expect(verdict.valid).toBe(false);
+    expect(verdict.problems).toContainEqual({ path: "plants[0].model.B", message: "must have 2 rows like A, has 3" });
+    expect(verdict.problems.map((p) => p.path)).toContain("variants[1].plant");
+  });
+});
