@@ -9,3 +9,7 @@ export type { RiccatiSolution, RiccatiOptions } from "./riccati";
 export { lqr, lqrWeightSweep, type LqrResult, type LoopMarginReport } from "./lqr";
 export { brysonWeights } from "./bryson";
 export { kalmanContinuous, kalmanDiscrete, type KalmanFilter, type DiscreteKalmanFilter } from "./kalman";
+export { augmentWithIntegrators, designIntegralLqr, designIntegralPoles, checkServoDcGain, type IntegralDesign } from "./integralAction";
+export { referenceFeedforward, FEEDFORWARD_WARNING } from "./feedforward";
+export { assembleCompensator, type CompensatorSpec, type AssembledCompensator } from "./compensator";
+export { integratorUpdate, saturate, type AntiWindupController, type AntiWindupMethod } from "./antiWindup";
