@@ -1,0 +1,70 @@
+import { describe, expect, it } from "vitest";
+import { EngineError } from "../../../shared-engine/errors";
+import { compileNonlinearPlant, robustnessSweep } from "../../../shared-engine/nonlinear";
+import { expectComplexSetsClose } from "../../helpers/assertions";
+import { pendulum, tank } from "./plantModels";
+
+describe("robustnessSweep", () => {
+  const plant = compileNonlinearPlant(pendulum);
+  const base = { plant, operatingPoint: { unknowns: ["omega", "torque"], states: { theta: Math.PI } }, K: [[20, 3]] };
+
+  it("a grid over l and c gives the closed-form closed-loop poles at every sample", () => {
+    const sweep = robustnessSweep({ ...base, parameters: [{ name: "l", percent: 20 }, { name: "c", percent: 50 }], sampling: { kind: "grid", pointsPerParameter: 3 } });
+    expect(sweep.samples.length).toBe(9);
+    expect(sweep.parameterNames).toEqual(["l", "c"]);
+    for (const s of sweep.samples) {
+      const [l, c] = s.values as [number, number];
+      // Hand-derived at θ = π: A − BK = [[0, 1], [g/l − 20b, −c − 3b]], b = 1/(m l²).
+      const b = 1 / (2 * l * l);
+      const tr = -c - 3 * b, det = -(9.81 / l - 20 * b);
+      const disc = tr * tr - 4 * det;
+      const expected = disc >= 0
+        ? [{ re: (tr + Math.sqrt(disc)) / 2, im: 0 }, { re: (tr - Math.sqrt(disc)) / 2, im: 0 }]
+        : [{ re: tr / 2, im: Math.sqrt(-disc) / 2 }, { re: tr / 2, im: -Math.sqrt(-disc) / 2 }];
+      expectComplexSetsClose(s.poles, expected, 1e-10, `poles at l = ${l}, c = ${c}`);
+      expect(s.stable).toBe(expected.every((z) => z.re < 0));
+    }
+    // l = 0.6: g/l − 20/(2·0.36) = 16.35 − 27.8 < 0 ⇒ stable; l = 0.4: 24.5 − 62.5 < 0 ⇒ stable.
+    expect(sweep.allStable).toBe(true);
+    expect(sweep.worstPhaseMarginDeg).not.toBeNull();
+    expect(sweep.marginsNote).toContain("single-input");
+  });
+
+  it("flags instability when the gain no longer holds the inverted pendulum", () => {
+    const sweep = robustnessSweep({ ...base, K: [[6, 1]], parameters: [{ name: "l", percent: 40 }], sampling: { kind: "grid", pointsPerParameter: 5 } });
+    // Hand-derived: stable iff 20·... here 6/(2l²) > g/l ⇔ l < 3/9.81 ≈ 0.306, so only l = 0.3 is stable.
+    expect(sweep.samples.map((s) => s.stable)).toEqual([true, false, false, false, false]);
+    expect(sweep.allStable).toBe(false);
+  });
+
+  it("seeded random sampling is reproducible and stays within the ±percent box", () => {
+    const a = robustnessSweep({ ...base, parameters: [{ name: "m", percent: 10 }], sampling: { kind: "random", samples: 6, seed: 99 } });
+    const b = robustnessSweep({ ...base, parameters: [{ name: "m", percent: 10 }], sampling: { kind: "random", samples: 6, seed: 99 } });
+    expect(a.samples.map((s) => s.values)).toEqual(b.samples.map((s) => s.values));
+    for (const s of a.samples) { expect(s.values[0]!).toBeGreaterThanOrEqual(1.8); expect(s.values[0]!).toBeLessThanOrEqual(2.2); }
+  });
+
+  it("records samples whose operating point fails instead of aborting", () => {
+    const tankPlant = compileNonlinearPlant(tank);
+    // Level 4.9 m with a ±60% outlet: at a = 0.016 the inflow needed exceeds the input max 0.1.
+    const sweep = robustnessSweep({ plant: tankPlant, operatingPoint: { unknowns: ["q_in"], states: { h: 4.9 } }, K: [[0.2]], parameters: [{ name: "a", percent: 60 }], sampling: { kind: "grid", pointsPerParameter: 3 } });
+    expect(sweep.failedSamples).toBe(1);
+    expect(sweep.samples[2]!.error!.message).toContain("input 'q_in'");
+    expect(sweep.allStable).toBe(false);
+  });
+
+  it("is cancellable and reports progress", () => {
+    const seen: number[] = [];
+    let caught: unknown;
+    try {
+      robustnessSweep({ ...base, parameters: [{ name: "l", percent: 10 }], sampling: { kind: "grid", pointsPerParameter: 4 }, onProgress: (f) => seen.push(f), isCancelled: () => seen.length >= 2 });
+    } catch (error) { caught = error; }
+    expect((caught as EngineError).kind).toBe("cancelled");
+    expect(seen).toEqual([0.25, 0.5]);
+  });
+
+  it("rejects unknown parameters and oversized grids", () => {
+    expect(() => robustnessSweep({ ...base, parameters: [{ name: "zeta", percent: 10 }], sampling: { kind: "grid", pointsPerParameter: 3 } })).toThrow(/'zeta' is not a declared parameter/);
+    expect(() => robustnessSweep({ ...base, parameters: [{ name: "l", percent: 10 }, { name: "c", percent: 10 }, { name: "m", percent: 10 }], sampling: { kind: "grid", pointsPerParameter: 30 } })).toThrow(/27000 samples/);
+  });
+});
