@@ -5,9 +5,10 @@ import { createStateSpace } from "../../shared-engine/model";
 import { frequencyResponse } from "../../shared-engine/analysis/frequencyResponse";
 import { stepResponse } from "../../shared-engine/analysis/timeResponse";
 import { rootLocus } from "../../shared-engine/analysis/rootLocus";
+import { placementCases, riccatiCases } from "./designCases";
 
 export function designCases(): BenchCase[] {
-  return [];
+  return [...riccatiCases(), ...placementCases()];
 }
 
 export function analysisCases(): BenchCase[] {

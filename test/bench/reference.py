@@ -34,8 +34,8 @@ def op_fn(op, a):
         return lambda: sla.solve_discrete_are(A, B, Q, R)
     if op == "place":
         B = np.array(a["B"], dtype=float)
-        poles = np.array(a["poles"], dtype=float)
-        return lambda: sig.place_poles(A, B, poles, method="KNV0")
+        poles = np.array(a["polesRe"], dtype=float) + 1j * np.array(a["polesIm"], dtype=float)
+        return lambda: sig.place_poles(A, B, poles, method="YT")
     if op == "freqresp":
         B, C, D = (np.array(a[k], dtype=float) for k in ("B", "C", "D"))
         w = np.array(a["w"], dtype=float)
