@@ -1,0 +1,183 @@
+/**
+ * Bode plot model: a shared logarithmic frequency axis, a magnitude panel (dB) and a phase panel
+ * (degrees), paths with gaps where the response is unbounded (null), margin marks, and the
+ * hover read-out. Pure; BodePlot.tsx draws it.
+ */
+import { line, scaleLinear, scaleLog, type ScaleLinear, type ScaleLogarithmic } from "d3";
+import { decadeDomain, linearTicks, logTicks, niceDomain, steppedTicks, type AxisModel } from "./axisModel";
+import { seriesStyle, type SeriesStyle } from "./palette";
+import { fullPrecision, isDrawable, type Domain } from "./plotTypes";
+
+export interface BodeMargins {
+  gainDb: number | null;
+  phaseDeg: number | null;
+  gainCrossover: number | null;
+  phaseCrossover: number | null;
+}
+
+/** One frequency response, shaped like VariantResult.bode (plus its name and margins). */
+export interface BodeSeries {
+  name: string;
+  frequency: readonly number[];
+  magnitudeDb: readonly (number | null)[];
+  phaseDeg: readonly (number | null)[];
+  margins?: BodeMargins | null;
+  styleIndex?: number;
+}
+
+export interface MarginMark {
+  seriesIndex: number;
+  kind: "gain" | "phase";
+  /** Crossover frequency (rad/s) and its x position. */
+  frequency: number;
+  x: number;
+  /** Vertical segment in the panel where the margin is read: [y at reference, y at curve]. */
+  y1: number;
+  y2: number;
+  panel: "magnitude" | "phase";
+  label: string;
+}
+
+export interface BodePanel {
+  y: ScaleLinear<number, number>;
+  axis: AxisModel;
+  top: number;
+  height: number;
+}
+
+export interface BodeModel {
+  x: ScaleLogarithmic<number, number>;
+  xAxis: AxisModel;
+  left: number;
+  width: number;
+  magnitude: BodePanel;
+  phase: BodePanel;
+  series: { name: string; style: SeriesStyle; magnitudePath: string; phasePath: string }[];
+  marks: MarginMark[];
+  /** y of the 0 dB line and of the −180° (+k·360°) reference nearest the data, when in view. */
+  zeroDbY: number | null;
+  phaseReferenceY: number | null;
+}
+
+export interface BodeModelInput {
+  series: readonly BodeSeries[];
+  width: number;
+  /** Top of the magnitude panel, panel heights and the gap between them. */
+  top: number;
+  panelHeight: number;
+  gap: number;
+  left: number;
+  right: number;
+  /** Visible frequency range (zoom); default: the decades holding every frequency. */
+  frequencyView?: Domain;
+}
+
+/**
+ * Linear interpolation of `values` at frequency w in log-frequency (the plots' own metric);
+ * null when w is outside the data or next to a gap.
+ */
+export function interpolateAtFrequency(frequency: readonly number[], values: readonly (number | null)[], w: number): number | null {
+  const n = frequency.length;
+  if (n === 0 || !(w > 0)) return null;
+  for (let k = 0; k + 1 < n; k++) {
+    const a = frequency[k]!, b = frequency[k + 1]!;
+    if (w >= a && w <= b) {
+      const va = values[k], vb = values[k + 1];
+      if (!isDrawable(va) || !isDrawable(vb)) return w === a && isDrawable(va) ? va : w === b && isDrawable(vb) ? vb : null;
+      if (b === a) return va;
+      const t = (Math.log(w) - Math.log(a)) / (Math.log(b) - Math.log(a));
+      return va + t * (vb - va);
+    }
+  }
+  if (n === 1 && w === frequency[0]) return isDrawable(values[0]) ? values[0] : null;
+  return null;
+}
+
+/** The odd multiple of 180° nearest to `phase` (the −180° line, shifted by whole turns when the phase is unwrapped). */
+export function phaseReference(phase: number): number {
+  return 180 * (2 * Math.round((phase - 180) / 360) + 1);
+}
+
+/** Index of the sample nearest to w in log-frequency (binary search; frequency increasing). */
+export function nearestFrequencyIndex(frequency: readonly number[], w: number): number {
+  const n = frequency.length;
+  if (n === 0) return -1;
+  let lo = 0, hi = n - 1;
+  while (hi - lo > 1) {
+    const mid = (lo + hi) >> 1;
+    if (frequency[mid]! <= w) lo = mid; else hi = mid;
+  }
+  return Math.abs(Math.log(w / frequency[lo]!)) <= Math.abs(Math.log(frequency[hi]! / w)) ? lo : hi;
+}
+
+export function bodeModel(input: BodeModelInput): BodeModel {
+  const { series, width, top, panelHeight, gap, left, right } = input;
+  const allFreq = series.flatMap((s) => s.frequency);
+  const xDomain = input.frequencyView ?? decadeDomain(allFreq);
+  const plotWidth = width - left - right;
+  const x = scaleLog().domain(xDomain).range([left, left + plotWidth]);
+  const inView = (s: BodeSeries, values: readonly (number | null)[]) => values.filter((_, k) => s.frequency[k]! >= xDomain[0] && s.frequency[k]! <= xDomain[1]);
+  const magValues = series.flatMap((s) => inView(s, s.magnitudeDb));
+  const phaseValues = series.flatMap((s) => inView(s, s.phaseDeg));
+  const magTop = top;
+  const phaseTop = top + panelHeight + gap;
+  const magDomain = niceDomain(magValues, 0.05, [0]);
+  const phaseDomain = niceDomain(phaseValues, 0.05);
+  const magY = scaleLinear().domain(magDomain).range([magTop + panelHeight, magTop]);
+  const phaseY = scaleLinear().domain(phaseDomain).range([phaseTop + panelHeight, phaseTop]);
+  const path = (s: BodeSeries, values: readonly (number | null)[], y: ScaleLinear<number, number>) =>
+    line<number>()
+      // A null (unbounded) or non-finite sample ends the current piece: the curve shows a gap.
+      .defined((k) => isDrawable(values[k]) && s.frequency[k]! > 0)
+      .x((k) => Number(x(s.frequency[k]!).toFixed(2)))
+      .y((k) => Number(y(values[k] as number).toFixed(2)))(s.frequency.map((_, k) => k)) ?? "";
+
+  const marks: MarginMark[] = [];
+  series.forEach((s, si) => {
+    const m = s.margins;
+    if (!m) return;
+    if (isDrawable(m.gainCrossover) && m.gainCrossover > 0) {
+      const ph = interpolateAtFrequency(s.frequency, s.phaseDeg, m.gainCrossover);
+      const ref = ph === null ? -180 : phaseReference(ph);
+      const pm = isDrawable(m.phaseDeg) ? m.phaseDeg : ph === null ? null : ph - ref;
+      marks.push({
+        seriesIndex: si, kind: "phase", frequency: m.gainCrossover, x: x(m.gainCrossover), panel: "phase",
+        y1: phaseY(ref), y2: phaseY(ph ?? ref + (pm ?? 0)),
+        label: `PM ${pm === null ? "unbounded" : `${Number(pm.toFixed(1))}°`} at ${Number(m.gainCrossover.toPrecision(3))} rad/s`,
+      });
+    }
+    if (isDrawable(m.phaseCrossover) && m.phaseCrossover > 0) {
+      const mag = interpolateAtFrequency(s.frequency, s.magnitudeDb, m.phaseCrossover);
+      const gm = isDrawable(m.gainDb) ? m.gainDb : mag === null ? null : -mag;
+      marks.push({
+        seriesIndex: si, kind: "gain", frequency: m.phaseCrossover, x: x(m.phaseCrossover), panel: "magnitude",
+        y1: magY(0), y2: magY(mag ?? -(gm ?? 0)),
+        label: `GM ${gm === null ? "unbounded" : `${Number(gm.toFixed(1))} dB`} at ${Number(m.phaseCrossover.toPrecision(3))} rad/s`,
+      });
+    }
+  });
+
+  const firstPhase = phaseValues.find(isDrawable);
+  const ref = firstPhase === undefined ? null : phaseReference(series.length && series[0]!.margins?.gainCrossover ? (interpolateAtFrequency(series[0]!.frequency, series[0]!.phaseDeg, series[0]!.margins.gainCrossover) ?? firstPhase) : firstPhase);
+  const within = (v: number, d: Domain) => v >= Math.min(d[0], d[1]) && v <= Math.max(d[0], d[1]);
+  return {
+    x,
+    xAxis: logTicks(xDomain, [left, left + plotWidth]),
+    left, width: plotWidth,
+    magnitude: { y: magY, axis: linearTicks(magDomain, [magTop + panelHeight, magTop], 5), top: magTop, height: panelHeight },
+    phase: { y: phaseY, axis: steppedTicks(phaseDomain, [phaseTop + panelHeight, phaseTop], 45, 6), top: phaseTop, height: panelHeight },
+    series: series.map((s, si) => ({ name: s.name, style: seriesStyle(s.styleIndex ?? si), magnitudePath: path(s, s.magnitudeDb, magY), phasePath: path(s, s.phaseDeg, phaseY) })),
+    marks,
+    zeroDbY: within(0, magDomain) ? magY(0) : null,
+    phaseReferenceY: ref !== null && within(ref, phaseDomain) ? phaseY(ref) : null,
+  };
+}
+
+/** Hover read-out at frequency w: for each series the nearest sample, every value in full precision. */
+export function bodeReadout(series: readonly BodeSeries[], w: number): { name: string; frequency: string; magnitudeDb: string; phaseDeg: string }[] {
+  return series.flatMap((s) => {
+    const k = nearestFrequencyIndex(s.frequency, w);
+    if (k < 0) return [];
+    return [{ name: s.name, frequency: fullPrecision(s.frequency[k]), magnitudeDb: fullPrecision(s.magnitudeDb[k]), phaseDeg: fullPrecision(s.phaseDeg[k]) }];
+  });
+}

@@ -1,0 +1,188 @@
+/**
+ * Time-response model: an outputs panel and (when any series has one) a control-input panel on a
+ * shared time axis, input limits as dashed lines, step metrics as marks (rise-time band,
+ * ±2 % settling band, overshoot peak), overlays dashed over their primary series. Pure.
+ */
+import { line, scaleLinear, type ScaleLinear } from "d3";
+import { linearTicks, niceDomain, tickLabel, type AxisModel } from "./axisModel";
+import { seriesStyle, type SeriesStyle } from "./palette";
+import { isDrawable, type Domain } from "./plotTypes";
+
+export interface ResponseMetrics {
+  riseTime?: number | null;
+  settlingTime?: number | null;
+  overshootPct?: number | null;
+  peak?: number | null;
+  peakTime?: number | null;
+  steadyStateValue?: number | null;
+  /** Which output the metrics describe (default 0). */
+  outputIndex?: number;
+}
+
+/** One time response, shaped like VariantResult.step (output[i][k], control[j][k]) plus a name. */
+export interface ResponseSeries {
+  name: string;
+  time: readonly number[];
+  output: readonly (readonly (number | null)[])[];
+  outputNames?: readonly string[];
+  control?: readonly (readonly (number | null)[])[];
+  controlNames?: readonly string[];
+  metrics?: ResponseMetrics | null;
+  /** Limits of the control input(s), drawn dashed in the control panel. */
+  controlLimits?: { lower?: number | null; upper?: number | null } | null;
+  /** An overlay (e.g. the nonlinear simulation) is drawn dashed in the colour of `styleIndex`. */
+  overlay?: boolean;
+  styleIndex?: number;
+}
+
+export const OVERLAY_DASH = "6 3";
+/** Settling band half-width: ±2 % of the final value (common practice). */
+export const SETTLING_BAND = 0.02;
+
+export interface MetricMarks {
+  seriesIndex: number;
+  /** Rise-time band [t10, t90] in x, when both crossings exist. */
+  rise: { x1: number; x2: number; label: string } | null;
+  /** Settling band ±2 % around the final value, and the settling time line. */
+  settling: { y1: number; y2: number; x: number | null; label: string } | null;
+  peak: { x: number; y: number; label: string } | null;
+}
+
+export interface ResponsePanel {
+  y: ScaleLinear<number, number>;
+  axis: AxisModel;
+  top: number;
+  height: number;
+  paths: { seriesIndex: number; channel: number; path: string; style: SeriesStyle; dash: string }[];
+}
+
+export interface ResponseModel {
+  x: ScaleLinear<number, number>;
+  xAxis: AxisModel;
+  left: number;
+  width: number;
+  outputs: ResponsePanel;
+  control: ResponsePanel | null;
+  limits: { y: number; value: number; kind: "lower" | "upper"; seriesIndex: number }[];
+  metrics: MetricMarks[];
+  styles: SeriesStyle[];
+}
+
+export interface ResponseModelInput {
+  series: readonly ResponseSeries[];
+  width: number;
+  top: number;
+  height: number;
+  left: number;
+  right: number;
+  gap: number;
+  timeView?: Domain;
+}
+
+/**
+ * First time the response reaches `level` (linear interpolation between samples), scanning
+ * from the start; null if it never does. Works for rising and falling responses.
+ */
+export function firstCrossing(time: readonly number[], values: readonly (number | null)[], level: number): number | null {
+  for (let k = 0; k < time.length; k++) {
+    const v = values[k];
+    if (!isDrawable(v)) continue;
+    const prev = k > 0 ? values[k - 1] : null;
+    if (v === level) return time[k]!;
+    if (k > 0 && isDrawable(prev) && (prev - level) * (v - level) < 0) {
+      return time[k - 1]! + ((level - prev) / (v - prev)) * (time[k]! - time[k - 1]!);
+    }
+  }
+  return null;
+}
+
+const dashOf = (s: ResponseSeries, style: SeriesStyle) => (s.overlay ? OVERLAY_DASH : style.dash);
+
+export function responseModel(input: ResponseModelInput): ResponseModel {
+  const { series, width, top, height, left, right, gap } = input;
+  const hasControl = series.some((s) => s.control && s.control.length > 0);
+  const plotWidth = width - left - right;
+  const tDomain: Domain = input.timeView ?? niceDomain(series.flatMap((s) => s.time), 0, [0]);
+  const x = scaleLinear().domain(tDomain).range([left, left + plotWidth]);
+  const styles = series.map((s, i) => seriesStyle(s.styleIndex ?? i));
+  const outH = hasControl ? (height - gap) * 0.62 : height;
+  const ctlH = hasControl ? height - gap - outH : 0;
+  const visible = (s: ResponseSeries, vals: readonly (number | null)[]) => vals.filter((_, k) => s.time[k]! >= tDomain[0] && s.time[k]! <= tDomain[1]);
+
+  const bandValues: number[] = [];
+  for (const s of series) {
+    const ss = s.metrics?.steadyStateValue;
+    if (isDrawable(ss)) bandValues.push(ss * (1 + SETTLING_BAND), ss * (1 - SETTLING_BAND));
+  }
+  const outDomain = niceDomain(series.flatMap((s) => s.output.flatMap((o) => visible(s, o))), 0.05, [0, ...bandValues]);
+  const outY = scaleLinear().domain(outDomain).range([top + outH, top]);
+  const pathOf = (s: ResponseSeries, vals: readonly (number | null)[], y: ScaleLinear<number, number>) =>
+    line<number>()
+      .defined((k) => isDrawable(vals[k]) && isDrawable(s.time[k]))
+      .x((k) => Number(x(s.time[k]!).toFixed(2)))
+      .y((k) => Number(y(vals[k] as number).toFixed(2)))(s.time.map((_, k) => k)) ?? "";
+
+  const outputs: ResponsePanel = {
+    y: outY, top, height: outH,
+    axis: linearTicks(outDomain, [top + outH, top], Math.max(3, Math.round(outH / 45))),
+    paths: series.flatMap((s, si) => s.output.map((o, c) => ({ seriesIndex: si, channel: c, path: pathOf(s, o, outY), style: styles[si]!, dash: dashOf(s, styles[si]!) }))),
+  };
+
+  let control: ResponsePanel | null = null;
+  const limits: ResponseModel["limits"] = [];
+  if (hasControl) {
+    const cTop = top + outH + gap;
+    const limitValues: number[] = [];
+    for (const s of series) {
+      if (isDrawable(s.controlLimits?.lower)) limitValues.push(s.controlLimits!.lower as number);
+      if (isDrawable(s.controlLimits?.upper)) limitValues.push(s.controlLimits!.upper as number);
+    }
+    const cDomain = niceDomain(series.flatMap((s) => (s.control ?? []).flatMap((u) => visible(s, u))), 0.08, [0, ...limitValues]);
+    const cY = scaleLinear().domain(cDomain).range([cTop + ctlH, cTop]);
+    control = {
+      y: cY, top: cTop, height: ctlH,
+      axis: linearTicks(cDomain, [cTop + ctlH, cTop], Math.max(3, Math.round(ctlH / 40))),
+      paths: series.flatMap((s, si) => (s.control ?? []).map((u, c) => ({ seriesIndex: si, channel: c, path: pathOf(s, u, cY), style: styles[si]!, dash: dashOf(s, styles[si]!) }))),
+    };
+    series.forEach((s, si) => {
+      const l = s.controlLimits;
+      if (isDrawable(l?.lower)) limits.push({ y: cY(l!.lower as number), value: l!.lower as number, kind: "lower", seriesIndex: si });
+      if (isDrawable(l?.upper)) limits.push({ y: cY(l!.upper as number), value: l!.upper as number, kind: "upper", seriesIndex: si });
+    });
+  }
+
+  const metrics: MetricMarks[] = [];
+  series.forEach((s, si) => {
+    const m = s.metrics;
+    if (!m || s.overlay) return;
+    const out = s.output[m.outputIndex ?? 0];
+    if (!out) return;
+    const ss = m.steadyStateValue;
+    let rise: MetricMarks["rise"] = null;
+    if (isDrawable(ss) && ss !== 0) {
+      // 10 %–90 % rise (common practice), located on the drawn samples.
+      const t10 = firstCrossing(s.time, out, 0.1 * ss);
+      const t90 = firstCrossing(s.time, out, 0.9 * ss);
+      if (t10 !== null && t90 !== null) {
+        const tr = isDrawable(m.riseTime) ? m.riseTime : t90 - t10;
+        rise = { x1: x(t10), x2: x(t90), label: `rise ${tickLabel(tr)} s` };
+      }
+    }
+    const settling = isDrawable(ss)
+      ? {
+          y1: outY(ss * (1 + SETTLING_BAND)), y2: outY(ss * (1 - SETTLING_BAND)),
+          x: isDrawable(m.settlingTime) ? x(m.settlingTime) : null,
+          label: isDrawable(m.settlingTime) ? `settled (±2 %) ${tickLabel(m.settlingTime)} s` : "not settled (±2 %)",
+        }
+      : null;
+    const peak = isDrawable(m.peak) && isDrawable(m.peakTime)
+      ? { x: x(m.peakTime), y: outY(m.peak), label: `peak ${tickLabel(m.peak)}${isDrawable(m.overshootPct) ? `, overshoot ${tickLabel(m.overshootPct)} %` : ""}` }
+      : null;
+    metrics.push({ seriesIndex: si, rise, settling, peak });
+  });
+
+  return {
+    x, xAxis: linearTicks(tDomain, [left, left + plotWidth], Math.max(3, Math.round(plotWidth / 80))),
+    left, width: plotWidth, outputs, control, limits, metrics, styles,
+  };
+}
