@@ -6,6 +6,10 @@ import { describeOptions, parseArgs, type OptionSpec } from "./args";
 import { readJsonArgument } from "./input";
 import { EXIT, usageError, type CliIo } from "./io";
 import { design, validate } from "./designCommands";
+import { analyze } from "./analyzeCommand";
+import { discretizeCommand } from "./discretizeCommand";
+import { locus } from "./locusCommand";
+import { sheet } from "./sheetCommand";
 
 export interface Command {
   name: string;
@@ -66,4 +70,4 @@ const call: Command = {
   },
 };
 
-export const commands: readonly Command[] = [design, validate, info, eigenvaluesCommand, call];
+export const commands: readonly Command[] = [design, validate, sheet, analyze, discretizeCommand, locus, info, eigenvaluesCommand, call];

@@ -10,7 +10,10 @@ import type { ErrorPayload } from "../errors";
 import type { PlantSpec, ProjectFile, RequirementSpec, SignOffSpec, VariantSpec } from "../project/format";
 import type { DesignRunResult, VariantResult } from "../project/result";
 
+import type * as T from "./contractTypes";
+
 export type { PlantSpec, ProjectFile, RequirementSpec, SignOffSpec, VariantSpec, DesignRunResult, VariantResult };
+export type * from "./contractTypes";
 
 export interface ComplexNumber {
   re: number;
@@ -44,6 +47,44 @@ export interface EngineMethods {
     params: { project: unknown; variant?: string };
     result: DesignRunResult;
   };
+  /** Realizes a transfer function (SISO or a transfer matrix) as a state-space model. */
+  "model.fromTransferFunction": { params: T.FromTransferFunctionParams; result: T.ModelResult };
+  /** Realizes zeros, poles and gain as a series of first- and second-order sections. */
+  "model.fromZeroPoleGain": { params: T.FromZeroPoleGainParams; result: T.ModelResult };
+  /** Samples a continuous model: zero-order hold, or Tustin with optional prewarping. */
+  "model.discretize": { params: T.DiscretizeParams; result: T.DiscretizeResult };
+  /** Poles, stability and DC gain. */
+  "analysis.poles": { params: T.ModelParams; result: T.PolesResult };
+  /** Controllability/observability with the failing modes, stabilizability, detectability. */
+  "analysis.structure": { params: T.StructureParams; result: T.StructureResult };
+  /** Transmission zeros (finite, infinite count, decoupling zeros) of a channel selection. */
+  "analysis.zeros": { params: T.ZerosParams; result: T.ZerosResult };
+  /** Real modal (block-diagonal) form and the mode/state coupling report. */
+  "analysis.modalForm": { params: T.ModelParams; result: T.ModalFormResult };
+  /** Controllability and observability Gramians and Hankel singular values (stable models). */
+  "analysis.gramians": { params: T.ModelParams; result: T.GramiansResult };
+  /** G(jω) (or G(e^{jωT})) on a given or automatic grid; null where unbounded. */
+  "analysis.frequencyResponse": { params: T.FrequencyResponseParams; result: T.FrequencyResponseResult };
+  /** Gain, phase, delay and disk margins and sensitivity peaks of a SISO loop. */
+  "analysis.margins": { params: T.MarginsParams; result: T.MarginsResult };
+  /** Step response and its metrics per output. */
+  "analysis.step": { params: T.StepParams; result: T.StepResult };
+  /** Root locus of a SISO loop (or one channel): branches, asymptotes, break points, crossings. */
+  "analysis.rootLocus": { params: T.RootLocusParams; result: T.RootLocusResult };
+  /** State-feedback gain K with eig(A − BK) at the requested poles. */
+  "design.placePoles": { params: T.PlacePolesParams; result: T.PlacePolesResult };
+  /** Observer gain L with eig(A − LC) at the requested poles. */
+  "design.observerPoles": { params: T.ObserverPolesParams; result: T.ObserverPolesResult };
+  /** Continuous or discrete algebraic Riccati equation with optional cross weight N. */
+  "design.riccati": { params: T.RiccatiParams; result: T.RiccatiResultJson };
+  /** LQR gain, Riccati solution and (continuous, one input) loop margins. */
+  "design.lqr": { params: T.LqrParams; result: T.LqrResultJson };
+  /** Steady-state Kalman filter (continuous, or discrete predictor/current form). */
+  "design.kalman": { params: T.KalmanParams; result: T.KalmanResultJson };
+  /** Diagonal LQR weights from the largest acceptable state and input excursions. */
+  "design.brysonWeights": { params: T.BrysonParams; result: T.BrysonResult };
+  /** LQR gains and closed-loop poles along R = ρ·R₀ (reports progress, can be cancelled). */
+  "design.lqrSweep": { params: T.LqrSweepParams; result: T.LqrSweepResult };
 }
 
 export type EngineMethod = keyof EngineMethods;
@@ -51,7 +92,32 @@ export type EngineParams<M extends EngineMethod> = EngineMethods[M]["params"];
 export type EngineResult<M extends EngineMethod> = EngineMethods[M]["result"];
 
 /** The method names, for validation at the process boundary. Keep in step with EngineMethods. */
-export const ENGINE_METHODS: readonly EngineMethod[] = ["engine.info", "linalg.eigenvalues", "project.load", "project.evaluateVariant", "project.evaluate"] as const;
+export const ENGINE_METHODS: readonly EngineMethod[] = [
+  "engine.info",
+  "linalg.eigenvalues",
+  "project.load",
+  "project.evaluateVariant",
+  "project.evaluate",
+  "model.fromTransferFunction",
+  "model.fromZeroPoleGain",
+  "model.discretize",
+  "analysis.poles",
+  "analysis.structure",
+  "analysis.zeros",
+  "analysis.modalForm",
+  "analysis.gramians",
+  "analysis.frequencyResponse",
+  "analysis.margins",
+  "analysis.step",
+  "analysis.rootLocus",
+  "design.placePoles",
+  "design.observerPoles",
+  "design.riccati",
+  "design.lqr",
+  "design.kalman",
+  "design.brysonWeights",
+  "design.lqrSweep",
+] as const;
 
 export function isEngineMethod(value: unknown): value is EngineMethod {
   return typeof value === "string" && (ENGINE_METHODS as readonly string[]).includes(value);

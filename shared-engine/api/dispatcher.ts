@@ -7,14 +7,14 @@ import { EngineError } from "../errors";
 import { eigenvalues } from "../linalg";
 import { ENGINE_VERSION } from "../version";
 import { evaluateProject, evaluateVariant, loadProjectText, loadProjectValue } from "../project";
-import { ENGINE_METHODS, type EngineMethod, type EngineMethods, type Progress, isEngineMethod } from "./contract";
+import { ENGINE_METHODS, type EngineMethod, type EngineMethods, isEngineMethod } from "./contract";
 import { requireMatrixParam, requireObjectParams } from "./params";
+import { requireFiniteResult, type RequestContext } from "./handlerSupport";
+import { modelHandlers } from "./handlers/modelHandlers";
+import { analysisHandlers } from "./handlers/analysisHandlers";
+import { designHandlers } from "./handlers/designHandlers";
 
-/** What a handler may use while it runs: cooperative cancellation and progress reports. */
-export interface RequestContext {
-  isCancelled(): boolean;
-  reportProgress(progress: Progress): void;
-}
+export type { RequestContext } from "./handlerSupport";
 
 type Handler<M extends EngineMethod> = (
   params: unknown,
@@ -56,7 +56,13 @@ const handlers: { [M in EngineMethod]: Handler<M> } = {
     if (p.variant !== undefined && typeof p.variant !== "string") throw new EngineError("invalid-argument", "project.evaluate: variant must be a variant id", { field: "variant" });
     return evaluateProject(loadProjectValue(p.project), { variant: p.variant as string | undefined });
   },
+  ...modelHandlers,
+  ...analysisHandlers,
+  ...designHandlers,
 };
+
+/** Methods whose results are checked for NaN/Infinity before they cross the bridge. */
+const FINITE_CHECKED: ReadonlySet<string> = new Set([...Object.keys(modelHandlers), ...Object.keys(analysisHandlers), ...Object.keys(designHandlers)]);
 
 export const NO_CONTEXT: RequestContext = { isCancelled: () => false, reportProgress: () => undefined };
 
@@ -67,5 +73,6 @@ export async function dispatch(method: unknown, params: unknown, context: Reques
     });
   }
   const handler = handlers[method] as Handler<EngineMethod>;
-  return handler(params, context);
+  const result = await handler(params, context);
+  return FINITE_CHECKED.has(method) ? requireFiniteResult(result, method) : result;
 }

@@ -71,6 +71,23 @@ export const CONTRACT_CASES: readonly ContractCase[] = [
   { name: "a non-number entry", method: "linalg.eigenvalues", params: { matrix: [[1, "2"], [3, 4]] }, expected: { ok: false, kind: "invalid-argument" } },
   { name: "a missing matrix", method: "linalg.eigenvalues", params: {}, expected: { ok: false, kind: "invalid-argument" } },
   { name: "params that are not an object", method: "engine.info", params: [1, 2], expected: { ok: false, kind: "invalid-argument" } },
+  // Model, analysis and design requests (deterministic; answers checked in test/app/api/dispatcher.test.ts).
+  { name: "realize 1/(s²+3s+2)", method: "model.fromTransferFunction", params: { numerator: [1], denominator: [1, 3, 2], balance: false }, expected: { ok: true } },
+  { name: "realize zeros, poles and gain", method: "model.fromZeroPoleGain", params: { zeros: [-3], poles: [{ re: -1, im: 1 }, { re: -1, im: -1 }], gain: 2 }, expected: { ok: true } },
+  { name: "sample the double integrator (zero-order hold)", method: "model.discretize", params: { model: { A: [[0, 1], [0, 0]], B: [[0], [1]], C: [[1, 0]] }, period: 0.1 }, expected: { ok: true } },
+  { name: "sample with Tustin and prewarping", method: "model.discretize", params: { model: { A: [[0, 1], [-4, -0.4]], B: [[0], [1]], C: [[1, 0]] }, period: 0.1, method: "tustin", prewarpRadPerSec: 2 }, expected: { ok: true } },
+  { name: "structure of an unstabilizable plant", method: "analysis.structure", params: { model: { A: [[-1, 0], [0, 2]], B: [[1], [0]], C: [[1, 1]] } }, expected: { ok: true } },
+  { name: "transmission zero at the origin", method: "analysis.zeros", params: { model: { A: [[-1, 0], [0, -2]], B: [[1], [1]], C: [[1, -2]] } }, expected: { ok: true } },
+  { name: "frequency response with an unbounded point", method: "analysis.frequencyResponse", params: { model: { A: [[0]], B: [[1]], C: [[1]] }, frequenciesRadPerSec: [0, 1, 10] }, expected: { ok: true } },
+  { name: "margins of 2/(s(s+1)(s+2))", method: "analysis.margins", params: { model: { A: [[0, 1, 0], [0, 0, 1], [0, -2, -3]], B: [[0], [0], [1]], C: [[2, 0, 0]] } }, expected: { ok: true } },
+  { name: "pole placement on a companion form", method: "design.placePoles", params: { A: [[0, 1, 0], [0, 0, 1], [-1, -5, -6]], B: [[0], [0], [1]], poles: [{ re: -2, im: 4 }, { re: -2, im: -4 }, -10] }, expected: { ok: true } },
+  { name: "LQR of the double integrator", method: "design.lqr", params: { A: [[0, 1], [0, 0]], B: [[0], [1]], Q: [[1, 0], [0, 2]], R: [[1]] }, expected: { ok: true } },
+  { name: "discrete Riccati equation", method: "design.riccati", params: { kind: "discrete", A: [[0, 1], [0, 0]], B: [[0], [1]], Q: [[1, 0], [0, 1]], R: [[1]] }, expected: { ok: true } },
+  { name: "Bryson weights with an unweighted state", method: "design.brysonWeights", params: { maxState: [0.1, null], maxInput: [5] }, expected: { ok: true } },
+  { name: "a negative sample period", method: "model.discretize", params: { model: { A: [[0]], B: [[1]], C: [[1]] }, period: -1 }, expected: { ok: false, kind: "invalid-argument" } },
+  { name: "a model whose B has the wrong rows", method: "analysis.structure", params: { model: { A: [[0, 1], [0, 0]], B: [[1]], C: [[1, 0]] } }, expected: { ok: false, kind: "shape-mismatch" } },
+  { name: "a Riccati request without its kind", method: "design.riccati", params: { A: [[0]], B: [[1]], Q: [[1]], R: [[1]] }, expected: { ok: false, kind: "invalid-argument" } },
+  { name: "an LQR sweep with no weights", method: "design.lqrSweep", params: { A: [[1]], B: [[1]], Q: [[1]], R: [[1]], rhoValues: [] }, expected: { ok: false, kind: "empty" } },
 ];
 
 /** Sorts eigenvalues by real part, then imaginary part, for comparison with expectedEigenvalues. */
