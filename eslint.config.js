@@ -10,7 +10,7 @@ const nodeBuiltinRegex = `^(node:.*|(${nodeBuiltins.join("|")})(/.*)?)$`;
 const ENGINE_MESSAGE =
   "shared-engine/ is pure TypeScript: it may import only other shared-engine modules and ml-matrix. No DOM, Electron, Node built-ins, main/ or renderer/.";
 const RENDERER_MESSAGE =
-  "renderer/ reaches the engine only through the bridge: from shared-engine it may import api/contract, api/client, api/preloadApi, errors, format and version (engine.worker.ts may also import api/server). No Electron and no Node built-ins.";
+  "renderer/ reaches the engine only through the bridge: from shared-engine it may import api/contract, api/client, api/preloadApi, errors, format, version and project/fingerprint (engine.worker.ts may also import api/server). No Electron and no Node built-ins.";
 const MAIN_MESSAGE = "main/ never imports renderer/: the two meet only through the bridge contract in shared-engine/api.";
 const ELECTRON_MESSAGE = "Only main/ and its preload import Electron (importing it outside the Electron binary throws).";
 
@@ -60,7 +60,9 @@ export default tseslint.config(
             { regex: nodeBuiltinRegex, message: RENDERER_MESSAGE },
             { regex: "(^|/)main(/|$)", message: RENDERER_MESSAGE },
             {
-              regex: "(^|/)shared-engine/(?!(api/contract|api/client|api/preloadApi|errors|format|version)$)",
+              // project/fingerprint is allowed too: a pure, DOM-free hash of plain specs (no numerics),
+              // and the design sheet must compute exactly the fingerprint the CLI and sign-offs use.
+              regex: "(^|/)shared-engine/(?!(api/contract|api/client|api/preloadApi|errors|format|version|project/fingerprint)$)",
               message: RENDERER_MESSAGE,
             },
           ],

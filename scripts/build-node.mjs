@@ -2,7 +2,18 @@
 // process, its engine worker thread and the preload. Runs on `npm install` (prepare), so
 // `npx loopwright` works right after a clean install.
 import { build } from "esbuild";
-import { copyFileSync, existsSync, mkdirSync } from "node:fs";
+import { copyFileSync, existsSync, mkdirSync, readFileSync } from "node:fs";
+import path from "node:path";
+
+// The design-sheet bundle (for `loopwright sheet`): `*.css?inline` imports become the CSS text
+// (as Vite does in the app), plain `*.css` imports (component side effects) become nothing.
+const inlineCssPlugin = {
+  name: "inline-css",
+  setup(b) {
+    b.onResolve({ filter: /\.css\?inline$/ }, (args) => ({ path: path.resolve(args.resolveDir, args.path.replace(/\?inline$/, "")), namespace: "inline-css" }));
+    b.onLoad({ filter: /.*/, namespace: "inline-css" }, (args) => ({ contents: readFileSync(args.path, "utf8"), loader: "text" }));
+  },
+};
 
 const common = { bundle: true, platform: "node", target: "node20", sourcemap: true, logLevel: "warning", legalComments: "none" };
 
@@ -12,6 +23,17 @@ const targets = [
   { entryPoints: ["main/engineWorker.ts"], outfile: "dist/main/engineWorker.js", format: "esm" },
   // Sandboxed preload scripts cannot be ES modules: CommonJS, with only `electron` left external.
   { entryPoints: ["main/preload.ts"], outfile: "dist/main/preload.cjs", format: "cjs", external: ["electron"] },
+  // The design sheet, rendered to static HTML by the command line (loaded at run time by path,
+  // so main/ never imports renderer/ code statically).
+  {
+    entryPoints: ["renderer/sheet/renderSheetHtml.tsx"],
+    outfile: "dist/sheet/sheet.js",
+    format: "esm",
+    jsx: "automatic",
+    loader: { ".css": "empty" },
+    define: { "process.env.NODE_ENV": '"production"' },
+    plugins: [inlineCssPlugin],
+  },
 ];
 
 let failed = false;
