@@ -5,7 +5,7 @@
 import { createRoot } from "react-dom/client";
 import { App } from "./App";
 import { createBridge, exposeBridgeForTests } from "./bridge";
-import { createDatabase, createProjectRepository, ensureDemoProject } from "./db";
+import { createDatabase, createDexieDocumentStore, createProjectRepository, ensureDemoProject, requestPersistentStorage } from "./db";
 import { createProjectListStore, type ThemeChoice } from "./state/projectListStore";
 import "./styles/app.css";
 
@@ -33,11 +33,14 @@ function applyTheme(theme: ThemeChoice): void {
 
 const connection = createBridge();
 const db = createDatabase();
+const repository = createProjectRepository(db);
+const documents = createDexieDocumentStore(db);
+void requestPersistentStorage(navigator.storage);
 const store = createProjectListStore({
-  repository: createProjectRepository(db),
+  repository,
   bridge: connection.bridge,
   transport: connection.transport,
-  prepare: () => ensureDemoProject(db),
+  prepare: () => ensureDemoProject(db, undefined, documents),
   initialTheme: readTheme(),
 });
 
@@ -53,7 +56,7 @@ const stopThemeSync = store.subscribe(() => {
 const rootElement = document.getElementById("root");
 if (!rootElement) throw new Error("index.html must contain <div id=\"root\">");
 const root = createRoot(rootElement);
-root.render(<App store={store} />);
+root.render(<App store={store} tools={{ documents, bridge: connection.bridge, repository }} />);
 void store.start();
 
 window.addEventListener("pagehide", (event) => {
@@ -62,5 +65,6 @@ window.addEventListener("pagehide", (event) => {
   removeTestHook();
   root.unmount();
   connection.dispose();
+  documents.dispose();
   db.close();
 });

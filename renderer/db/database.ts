@@ -1,7 +1,8 @@
 /**
  * The renderer's IndexedDB database ("loopwright"), opened through Dexie 4.
  */
-import { Dexie, type EntityTable } from "dexie";
+import { Dexie, type EntityTable, type Table } from "dexie";
+import type { ProjectFile, SignOffSpec } from "../../shared-engine/api/contract";
 import { DATABASE_NAME, declareSchema } from "./schema";
 
 /** A stored project (schema v2). Dates are epoch milliseconds so records stay plain JSON. */
@@ -22,9 +23,43 @@ export interface MetaRecord {
   value: unknown;
 }
 
+/** The latest revision of one project's document (schema v3). */
+export interface DocumentRecord {
+  projectId: string;
+  revision: number;
+  document: ProjectFile;
+  savedAt: number;
+}
+
+/** One saved revision (schema v3); never changed once written. */
+export interface RevisionRecord {
+  projectId: string;
+  revision: number;
+  document: ProjectFile;
+  savedAt: number;
+  message: string;
+}
+
+/** A sign-off of the latest document, indexed per project and variant (schema v3). */
+export interface SignOffRecord extends SignOffSpec {
+  /** `${projectId}/${variant}/${role}/${index}`. */
+  id: string;
+  projectId: string;
+}
+
+/** A user preference (schema v3). */
+export interface SettingRecord {
+  key: string;
+  value: unknown;
+}
+
 export type LoopwrightDatabase = Dexie & {
   projects: EntityTable<ProjectRecord, "id">;
   meta: EntityTable<MetaRecord, "key">;
+  documents: EntityTable<DocumentRecord, "projectId">;
+  revisions: Table<RevisionRecord, [string, number]>;
+  signOffs: EntityTable<SignOffRecord, "id">;
+  settings: EntityTable<SettingRecord, "key">;
 };
 
 export interface OpenDatabaseOptions {

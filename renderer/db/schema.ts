@@ -45,6 +45,25 @@ export const SCHEMA_VERSIONS: readonly SchemaVersion[] = [
         });
     },
   },
+  {
+    // v3: the project document lives in the database, saved as numbered revisions.
+    // documents: { projectId, revision, document, savedAt } (the latest revision of each project);
+    // revisions: { projectId, revision, document, savedAt, message } keyed [projectId+revision];
+    // signOffs: { id, projectId, variant, role, name, date, fingerprint } mirrors the latest
+    //   document's sign-offs so they can be looked up per variant without loading documents;
+    // settings: { key, value } for user preferences.
+    // No upgrade function: v2 rows are kept as they are, and a project without a `documents` row
+    // opens at revision 0 with an empty document named after the project (documentStore.load).
+    version: 3,
+    stores: {
+      projects: "id, name, nameKey, updatedAt",
+      meta: "key",
+      documents: "projectId, savedAt",
+      revisions: "[projectId+revision], projectId, savedAt",
+      signOffs: "id, projectId, [projectId+variant]",
+      settings: "key",
+    },
+  },
 ];
 
 /** The version the current code writes. */

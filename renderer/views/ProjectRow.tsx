@@ -7,10 +7,12 @@ interface Props {
   project: ProjectRecord;
   state: ProjectListState;
   store: ProjectListStore;
+  /** Opens the project's design workspace; absent: no Open action. */
+  onOpen?: (project: ProjectRecord) => void;
 }
 
 /** One project: name (or the inline rename field), dates, and rename/delete with an in-row confirmation. */
-export function ProjectRow({ project, state, store }: Props) {
+export function ProjectRow({ project, state, store, onOpen }: Props) {
   const renaming = state.rename?.id === project.id ? state.rename : null;
   const confirming = state.pendingDeleteId === project.id;
   const renameInput = useRef<HTMLInputElement>(null);
@@ -103,6 +105,14 @@ export function ProjectRow({ project, state, store }: Props) {
         ) : (
           !renaming && (
             <>
+              {onOpen && (
+                <button type="button" className="button-accent" onClick={() => onOpen(project)} aria-label={`Open ${project.name}`}>
+                  Open
+                </button>
+              )}
+              <a className="button-quiet tools-link" href={`#/project/${encodeURIComponent(project.id)}/compare`} aria-label={`Compare and history of ${project.name}`}>
+                Compare &amp; history
+              </a>
               <button ref={renameButton} type="button" className="button-quiet" onClick={() => store.startRename(project.id)} aria-label={`Rename ${project.name}`}>
                 Rename
               </button>

@@ -11,9 +11,13 @@ import type { PlantSpec, ProjectFile, RequirementSpec, SignOffSpec, VariantSpec 
 import type { DesignRunResult, VariantResult } from "../project/result";
 
 import type * as T from "./contractTypes";
+import type * as NL from "./nonlinearContractTypes";
+import type * as SV from "./servoContractTypes";
 
 export type { PlantSpec, ProjectFile, RequirementSpec, SignOffSpec, VariantSpec, DesignRunResult, VariantResult };
 export type * from "./contractTypes";
+export type * from "./nonlinearContractTypes";
+export type * from "./servoContractTypes";
 
 export interface ComplexNumber {
   re: number;
@@ -85,6 +89,28 @@ export interface EngineMethods {
   "design.brysonWeights": { params: T.BrysonParams; result: T.BrysonResult };
   /** LQR gains and closed-loop poles along R = ρ·R₀ (reports progress, can be cancelled). */
   "design.lqrSweep": { params: T.LqrSweepParams; result: T.LqrSweepResult };
+  /** Integral (servo) gains Kx, Ki by LQR or pole placement, with the servo DC-gain check. */
+  "design.integral": { params: SV.IntegralDesignParams; result: SV.IntegralDesignResult };
+  /** Reference feedforward N (u = −Kx + N r) with its nominal-model caveat. */
+  "design.feedforward": { params: SV.FeedforwardParams; result: SV.FeedforwardResult };
+  /** Observer-based compensator: controller, closed loop, separation and margin comparison. */
+  "design.compensator": { params: SV.CompensatorParams; result: SV.CompensatorResult };
+  /** Reduced-order (minimal-order) observer by pole placement. */
+  "design.reducedObserver": { params: SV.ReducedObserverParams; result: SV.ReducedObserverResultJson };
+  /** Closed-loop LQR poles as R = ρ·R0 varies (reports progress, can be cancelled). */
+  "analysis.lqrWeightLocus": { params: SV.LqrWeightLocusParams; result: SV.LqrWeightLocusResult };
+  /** Eigenvalues of A − L(f)C with observer poles f·poles (reports progress, can be cancelled). */
+  "analysis.observerSpeedLocus": { params: SV.ObserverSpeedLocusParams; result: SV.ObserverSpeedLocusResult };
+  /** Live check of typed equations: per-equation problems with columns; never fails on syntax. */
+  "nonlinear.check": { params: NL.NonlinearCheckParams; result: NL.NonlinearCheckResult };
+  /** Operating point (equilibrium plus output set-points) of a nonlinear plant. */
+  "nonlinear.operatingPoint": { params: NL.NonlinearPlantParams; result: NL.OperatingPointResult };
+  /** Exact linearization at the solved operating point. */
+  "nonlinear.linearize": { params: NL.NonlinearPlantParams; result: NL.LinearizeResult };
+  /** Closed-loop simulation of the nonlinear plant beside the linear prediction (progress, cancel). */
+  "nonlinear.simulate": { params: NL.NonlinearSimulateParams; result: NL.NonlinearSimulateResult };
+  /** Parameter sweep with the gain fixed: poles, stability, margins (progress, cancel). */
+  "nonlinear.robustness": { params: NL.NonlinearRobustnessParams; result: NL.NonlinearRobustnessResult };
 }
 
 export type EngineMethod = keyof EngineMethods;
@@ -117,6 +143,17 @@ export const ENGINE_METHODS: readonly EngineMethod[] = [
   "design.kalman",
   "design.brysonWeights",
   "design.lqrSweep",
+  "design.integral",
+  "design.feedforward",
+  "design.compensator",
+  "design.reducedObserver",
+  "analysis.lqrWeightLocus",
+  "analysis.observerSpeedLocus",
+  "nonlinear.check",
+  "nonlinear.operatingPoint",
+  "nonlinear.linearize",
+  "nonlinear.simulate",
+  "nonlinear.robustness",
 ] as const;
 
 export function isEngineMethod(value: unknown): value is EngineMethod {
