@@ -19,7 +19,12 @@ export interface LoopMargins {
   phaseMargins: { frequencyRadPerSec: number; phaseDeg: number }[];
   /** The gain margin of smallest |gainDb|; null = no phase crossover (infinite gain margin). */
   gainMarginDb: number | null;
-  /** The smallest phase margin; null = no gain crossover (infinite phase margin). */
+  /**
+   * The critical phase margin: the smallest |180° + ∠L| over the gain crossovers (the angle
+   * between L and −1 there), positive when the closed loop is stable and negative when it is
+   * unstable; null = no gain crossover (infinite phase margin). The per-crossover values in
+   * `phaseMargins` keep their wrapped sign.
+   */
   phaseMarginDeg: number | null;
   /** Frequency of `phaseMarginDeg`. */
   gainCrossoverRadPerSec: number | null;
@@ -177,7 +182,12 @@ export function loopMargins(L: StateSpace, options: { grid?: number[] } = {}): L
     return { frequencyRadPerSec: w, phaseDeg: wrapDegrees(180 + (Math.atan2(v.im, v.re) * 180) / Math.PI) };
   });
   const criticalGain = gainMargins.reduce<(typeof gainMargins)[number] | null>((best, g) => (best === null || Math.abs(g.gainDb) < Math.abs(best.gainDb) ? g : best), null);
-  const criticalPhase = phaseMargins.reduce<(typeof phaseMargins)[number] | null>((best, p) => (best === null || p.phaseDeg < best.phaseDeg ? p : best), null);
+  // The critical phase margin is the crossover where L(jω) comes nearest −1 in angle, |PM|.
+  // Its sign follows closed-loop stability (the project convention: negative when the closed
+  // loop is unstable), not the branch of the wrapped angle: an open-loop-unstable loop that is
+  // stable when closed can have 180° + ∠L = −165° at its crossover, which is 165° from −1.
+  const nearest = phaseMargins.reduce<(typeof phaseMargins)[number] | null>((best, p) => (best === null || Math.abs(p.phaseDeg) < Math.abs(best.phaseDeg) ? p : best), null);
+  const criticalPhase = nearest === null ? null : { frequencyRadPerSec: nearest.frequencyRadPerSec, phaseDeg: (stability.stable ? 1 : -1) * Math.abs(nearest.phaseDeg) };
   if (gainCrossovers.length === 0) warnings.push("no gain crossover on the grid: the phase margin is infinite");
 
   let delay: number | null = null;

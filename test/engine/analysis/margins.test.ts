@@ -2,6 +2,7 @@ import { describe, expect, it } from "vitest";
 import fc from "fast-check";
 import { createStateSpace, type StateSpace } from "../../../shared-engine/model";
 import { loopMargins } from "../../../shared-engine/analysis/margins";
+import { lqr } from "../../../shared-engine/design/lqr";
 import { diskMarginFromPeak } from "../../../shared-engine/analysis/diskMargin";
 import { frequencyResponse } from "../../../shared-engine/analysis/frequencyResponse";
 import { expectAtMost, expectRelativeClose } from "../../helpers/assertions";
@@ -249,5 +250,30 @@ describe("loopMargins properties on random stable loops", () => {
       }),
       { seed: 777, numRuns: 60 },
     );
+  });
+});
+
+describe("critical phase margin convention", () => {
+  // Plant of Doyle 1978 ("Guaranteed margins for LQG regulators", IEEE TAC 23(4); recalled from
+  // memory): two unstable poles at +1. Its LQR loop K(sI − A)⁻¹B is stable when closed and, by
+  // Safonov & Athans 1977, keeps at least 60° of phase margin — yet one of its gain crossovers
+  // has 180° + ∠L = −117.6° on the wrapped branch. The critical margin is the crossover nearest
+  // −1 in angle, signed by closed-loop stability.
+  it("reports the LQR-guaranteed margin for an open-loop-unstable loop that is stable when closed", () => {
+    const A = [[1, 1], [0, 1]];
+    const B = [[0], [1]];
+    const r = lqr(A, B, [[1, 0], [0, 1]], [[1]]);
+    const m = loopMargins(createStateSpace({ A, B, C: r.K.to2DArray(), D: [[0]] }));
+    expect(m.closedLoopStable).toBe(true);
+    expect(m.phaseMargins.some((p) => p.phaseDeg < 0)).toBe(true);
+    expect(m.phaseMarginDeg!).toBeGreaterThanOrEqual(60);
+    expect(m.phaseMarginDeg).toBe(Math.min(...m.phaseMargins.map((p) => Math.abs(p.phaseDeg))));
+  });
+
+  it("signs the critical phase margin negative when the closed loop is unstable", () => {
+    // k/(s(s+1)(s+2)) with k = 10 > 6 is unstable in closed loop (worked by hand: Routh array).
+    const m = loopMargins(createStateSpace({ A: [[0, 1, 0], [0, 0, 1], [0, -2, -3]], B: [[0], [0], [10]], C: [[1, 0, 0]], D: [[0]] }));
+    expect(m.closedLoopStable).toBe(false);
+    expect(m.phaseMarginDeg!).toBeLessThan(0);
   });
 });
