@@ -44,6 +44,20 @@ export function formatVariant(v: VariantResult): string {
     ];
     lines.push(`  plant: ${d.states} states, ${d.inputs} inputs, ${d.outputs} outputs, ${d.disturbances} disturbances; ${v.plant.sampleTime === null ? "continuous" : `sampled at ${v.plant.sampleTime} s`}; ${flags.join(", ")}`);
     lines.push(`  plant poles: ${v.plant.poles.map((p) => formatComplex(p, 5)).join(", ")}`);
+    const op = v.plant.operatingPoint;
+    if (op) {
+      const list = (values: Record<string, number>): string => Object.entries(values).map(([k, x]) => `${k} = ${formatReal(x, 6)}`).join(", ") || "none";
+      lines.push(`  operating point (residual ${op.residual.toExponential(2)}, ${op.iterations} Newton iterations):`);
+      lines.push(`    states: ${list(op.states)}`, `    inputs: ${list(op.inputs)}`, `    disturbances: ${list(op.disturbances)}`, `    outputs: ${list(op.outputs)}`);
+    }
+    const lin = v.plant.linearization;
+    if (lin) {
+      lines.push("  linearization at the operating point (deviations; continuous time):");
+      const inline = (m: number[][]): string => `[ ${m.map((row) => row.map((x) => formatReal(x, 6)).join("  ")).join("; ")} ]`;
+      for (const key of ["A", "B", "F", "C", "D", "E"] as const) {
+        if (lin[key].length > 0 && lin[key][0]!.length > 0) lines.push(`    ${key} = ${inline(lin[key])}`);
+      }
+    }
   }
   if (v.error) {
     lines.push(`  NOT DESIGNED: ${v.error.message} [${v.error.kind}]`);
@@ -66,6 +80,15 @@ export function formatVariant(v: VariantResult): string {
   if (v.step) {
     const s = v.step;
     lines.push(`  step (${s.loop}, from ${s.input}): rise ${optional(s.riseTime, " s")}, settling ${optional(s.settlingTime, " s")}, overshoot ${formatReal(s.overshootPct, 4)} %, final ${optional(s.steadyStateValue, "")}${s.peakInput !== undefined ? `, peak input ${formatReal(s.peakInput, 4)}` : ""} [${s.status}]`);
+  }
+  if (v.nonlinear) {
+    const nl = v.nonlinear;
+    const d = nl.largestDivergence;
+    lines.push(`  nonlinear check (${nl.controller === "continuous" ? "continuous controller" : `controller sampled at ${nl.controller} s`}, ${nl.time.length} times to ${formatReal(nl.time[nl.time.length - 1] ?? 0, 4)} s): largest divergence from the linear prediction ${d ? `${formatReal(d.size, 4)} (${d.output} at t = ${formatReal(d.time, 4)} s)` : "none"}, predicted excursion ${formatReal(nl.linearExcursion, 4)}; ${nl.saturated ? "an input saturated" : "no input saturated"}${nl.stoppedEarly ? `; STOPPED at t = ${formatReal(nl.stoppedEarly.time, 4)} s: ${nl.stoppedEarly.reason}` : ""}`);
+  }
+  if (v.robustness) {
+    const r = v.robustness;
+    lines.push(`  robustness (${r.parameterNames.join(", ")}; ${r.samples} samples): ${r.allStable ? "all stable" : "NOT all stable"}, ${r.failedSamples} without an operating point; largest pole real part ${optional(r.largestRealPart, "", 4)}; worst gain margin ${optional(r.worstGainMarginDb, " dB")}, worst phase margin ${optional(r.worstPhaseMarginDeg, "°")}`);
   }
   if (v.bode) lines.push(`  Bode (${v.bode.loop}): ${v.bode.frequency.length} frequencies from ${formatReal(v.bode.frequency[0]!, 4)} to ${formatReal(v.bode.frequency[v.bode.frequency.length - 1]!, 4)} rad/s`);
   for (const c of v.checks) lines.push(`  ${c.passed ? "pass" : "FAIL"}  ${c.name}: ${c.detail}`);

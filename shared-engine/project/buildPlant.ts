@@ -16,7 +16,16 @@ import {
   type StateSpace,
   type TransferFunction,
 } from "../model";
-import type { ComplexSpec, ModelSpec, SignalNamesSpec } from "./format";
+import {
+  compileNonlinearPlant,
+  linearize,
+  solveOperatingPoint,
+  type CompiledNonlinearPlant,
+  type Linearization,
+  type OperatingPoint,
+  type OperatingPointRequest,
+} from "../nonlinear";
+import type { ComplexSpec, ModelSpec, NonlinearModelSpec, SignalNamesSpec } from "./format";
 
 export function toComplex(value: ComplexSpec): Complex {
   return typeof value === "number" ? { re: value, im: 0 } : { re: value.re, im: value.im };
@@ -51,7 +60,46 @@ function withNames(model: StateSpace, names: SignalNamesSpec | undefined, units:
   });
 }
 
+/** A nonlinear plant from a project file: compiled, its operating point solved, linearized. */
+export interface BuiltNonlinearPlant {
+  plant: CompiledNonlinearPlant;
+  point: OperatingPoint;
+  linearization: Linearization;
+  /** The request the point was solved from (the sweep re-solves it per sample). */
+  request: OperatingPointRequest;
+}
+
+/**
+ * Computes: the compiled plant of a `"nonlinear"` model, the operating point its
+ *   `operatingPoint` request asks for, and the exact linearization there (continuous
+ *   StateSpace A: n×n, B: n×m, C: p×n, D: p×m, F: n×q, E: p×q with the plant's names/units).
+ * Requires: a validated model (validateProject); the operating point solvable from the guess.
+ * Method: `compileNonlinearPlant`, `solveOperatingPoint` (damped Newton, Dennis & Schnabel
+ *   1983), `linearize` (forward-mode automatic differentiation).
+ * Cost: O(equation size) to compile; per Newton iteration O(nodes·unknowns + k³).
+ * Accuracy: operating-point residual ≤ the request's tolerance (default 1e-10); Jacobians exact
+ *   to rounding.
+ * Errors: as the three routines ("validation", "parse-error", "invalid-argument", "singular",
+ *   "no-convergence", "non-finite"), the message prefixed with `path` and, for the operating
+ *   point, `.operatingPoint`.
+ * Example:
+ *   const built = buildNonlinearPlant(queueModel, "plants[0].model");
+ *   // built.point.inputs[0] = λ(K + q)/(μq) = 40 for the queue example; built.point.residual ≤ 1e-10
+ */
+export function buildNonlinearPlant(spec: NonlinearModelSpec, path: string): BuiltNonlinearPlant {
+  const plant = atPath(path, () => compileNonlinearPlant(spec));
+  const request: unknown = spec.operatingPoint;
+  if (request === null || typeof request !== "object" || Array.isArray(request)) {
+    throw new EngineError("validation", `${path}.operatingPoint: must be an object naming the unknowns (states and inputs to solve for)`, { path: `${path}.operatingPoint` });
+  }
+  const point = atPath(`${path}.operatingPoint`, () => solveOperatingPoint(plant, spec.operatingPoint));
+  const lin = atPath(`${path}.operatingPoint`, () => linearize(plant, point));
+  return { plant, point, linearization: lin, request: spec.operatingPoint };
+}
+
 export function buildPlantModel(spec: ModelSpec, path: string): StateSpace {
+  // buildNonlinearPlant prefixes its own paths (the operating point has a deeper one).
+  if (spec.type === "nonlinear") return buildNonlinearPlant(spec, path).linearization.model;
   return atPath(path, () => {
     switch (spec.type) {
       case "state-space":

@@ -30,7 +30,8 @@ import { kalmanContinuous, kalmanDiscrete } from "../design/kalman";
 import { designIntegralLqr, designIntegralPoles } from "../design/integralAction";
 import { referenceFeedforward } from "../design/feedforward";
 import { assembleCompensator } from "../design/compensator";
-import { atPath, buildPlantModel, toComplex } from "./buildPlant";
+import { atPath, buildNonlinearPlant, buildPlantModel, toComplex, type BuiltNonlinearPlant } from "./buildPlant";
+import { nonlinearPlantFields, runNonlinearCheck, runRobustness, type FeedbackGains } from "./nonlinearChecks";
 import { loopAtInput, stateFeedbackClosedLoop } from "./closedLoop";
 import type { PlantSpec, RequirementSpec, VariantSpec } from "./format";
 import type { ComplexJson, VariantResult } from "./result";
@@ -89,7 +90,14 @@ export function evaluateVariant(plantSpec: PlantSpec, variant: VariantSpec, opti
 function run(plantSpec: PlantSpec, variant: VariantSpec, options: EvaluateOptions, result: VariantResult): void {
   const vpath = `variants[${options.variantIndex ?? 0}]`;
   const ppath = `plants[${options.plantIndex ?? 0}].model`;
-  let model = buildPlantModel(plantSpec.model, ppath);
+  let nonlinear: BuiltNonlinearPlant | null = null;
+  let model: StateSpace;
+  if (plantSpec.model.type === "nonlinear") {
+    nonlinear = buildNonlinearPlant(plantSpec.model, ppath);
+    model = nonlinear.linearization.model;
+  } else {
+    model = buildPlantModel(plantSpec.model, ppath);
+  }
 
   if (variant.discretize) {
     const d = variant.discretize;
@@ -104,6 +112,7 @@ function run(plantSpec: PlantSpec, variant: VariantSpec, options: EvaluateOption
   }
   const T = model.sampleTime;
   result.plant = plantReport(model);
+  if (nonlinear) Object.assign(result.plant, nonlinearPlantFields(nonlinear));
 
   // ---- State feedback --------------------------------------------------------------------
   let feedback: FeedbackDesign | null = null;
@@ -267,6 +276,20 @@ function run(plantSpec: PlantSpec, variant: VariantSpec, options: EvaluateOption
       status: metrics.status,
     };
     result.warnings.push(...resp.warnings.map((w) => `step: ${w}`));
+  }
+
+  // ---- Nonlinear plant: simulation and parameter sweep ------------------------------------------
+  if (variant.nonlinearCheck || variant.robustness) {
+    const which = variant.nonlinearCheck ? "nonlinearCheck" : "robustness";
+    if (!nonlinear) throw new EngineError("invalid-argument", `${vpath}.${which}: applies only to a plant of type "nonlinear"`, {});
+    if (!feedback) throw new EngineError("invalid-argument", `${vpath}.${which}: needs a stateFeedback design`, {});
+    const gains: FeedbackGains = {
+      K: feedback.K,
+      Ki: feedback.Ki,
+      integratedOutputs: integratedOutputIndices(model, variant).map((i) => model.names.outputs[i]!),
+    };
+    if (variant.nonlinearCheck) atPath(`${vpath}.nonlinearCheck`, () => runNonlinearCheck(nonlinear!, variant, gains, result));
+    if (variant.robustness) atPath(`${vpath}.robustness`, () => runRobustness(nonlinear!, variant, gains, result));
   }
 
   if (options.requirements && options.requirements.length > 0) result.checks.push(...checkRequirements(options.requirements, result));

@@ -6,6 +6,8 @@
  * add a new version and a migration (migrations.ts) instead.
  */
 
+import type { NonlinearPlantSpec, OperatingPointRequest, ClosedLoopScenario, SweepSampling } from "../nonlinear";
+
 export const PROJECT_FORMAT = "loopwright-project";
 export const PROJECT_VERSION = 1;
 
@@ -52,7 +54,21 @@ export interface ZeroPoleGainModelSpec {
   units?: SignalNamesSpec;
 }
 
-export type ModelSpec = StateSpaceModelSpec | TransferFunctionModelSpec | ZeroPoleGainModelSpec;
+/**
+ * A nonlinear plant x' = f(x, u, w, p), y = g(x, u, w, p) typed as equations (the fields of the
+ * nonlinear layer's NonlinearPlantSpec), with the operating point the design linearizes at.
+ * The design uses the exact linearization there; `nonlinearCheck` and `robustness` variant keys
+ * go back to the equations.
+ */
+export interface NonlinearModelSpec extends NonlinearPlantSpec {
+  type: "nonlinear";
+  /** Which states and inputs to solve for, and the fixed values and output set-points. */
+  operatingPoint: OperatingPointRequest;
+  /** Always null: the equations are continuous-time (a variant may discretize the linearization). */
+  sampleTime: null;
+}
+
+export type ModelSpec = StateSpaceModelSpec | TransferFunctionModelSpec | ZeroPoleGainModelSpec | NonlinearModelSpec;
 
 export interface PlantSpec {
   id: string;
@@ -101,6 +117,15 @@ export interface VariantSpec {
   bode?: { frequencies: number[] };
   margins?: { feedback: "unity-negative" } | { at: "plant-input" };
   step?: { times: number[] };
+  /**
+   * Nonlinear plants only: simulate the nonlinear plant under the designed state feedback
+   * (measured states, actuator limits, sampled when the variant discretizes) beside the linear
+   * prediction. `relativeTolerance` (default 0.1) bounds the largest output divergence relative
+   * to the linear prediction's largest output excursion (check "nonlinear-agrees").
+   */
+  nonlinearCheck?: { times: number[]; scenario: ClosedLoopScenario; relativeTolerance?: number };
+  /** Nonlinear plants only: re-solve, re-linearize and re-check the fixed gain over parameter changes. */
+  robustness?: { parameters: { name: string; percent: number }[]; sampling: SweepSampling };
   notes?: string;
 }
 

@@ -25,6 +25,22 @@ export interface PlantReport {
   detectable?: boolean;
   uncontrollableModes?: ComplexJson[];
   unobservableModes?: ComplexJson[];
+  /** Nonlinear plants: the solved operating point (absolute values, by signal name). */
+  operatingPoint?: {
+    states: Record<string, number>;
+    inputs: Record<string, number>;
+    disturbances: Record<string, number>;
+    outputs: Record<string, number>;
+    /** max |f| and max |y − set-point| at the point. */
+    residual: number;
+    /** Newton iterations used. */
+    iterations: number;
+  };
+  /**
+   * Nonlinear plants: the exact Jacobians at the operating point (continuous time, deviation
+   * variables δx' = A δx + B δu + F δw, δy = C δx + D δu + E δw); the design uses this model.
+   */
+  linearization?: { A: number[][]; B: number[][]; C: number[][]; D: number[][]; F: number[][]; E: number[][] };
 }
 
 export interface Check {
@@ -106,6 +122,45 @@ export interface VariantResult {
     steadyStateError: number | null;
     peakInput?: number;
     status: string;
+  };
+  /**
+   * `nonlinearCheck`: the nonlinear plant under the designed state feedback (states measured),
+   * beside the linear prediction. Absolute values; output[i][k] is output i at time k.
+   */
+  nonlinear?: {
+    time: number[];
+    outputNames: string[];
+    inputNames: string[];
+    output: number[][];
+    /** The linearized loop's prediction on the same times (no saturation). */
+    linearOutput: number[][];
+    input: number[][];
+    /** Largest |y − y_linear| over outputs and times, with where it happened; null without outputs. */
+    largestDivergence: { time: number; output: string; size: number } | null;
+    /** Largest |y_linear − y0| (the size of the predicted response), the scale of the check. */
+    linearExcursion: number;
+    /** True when an input hit its min/max (or, sampled, its rate limit). */
+    saturated: boolean;
+    /** The simulation ended before the last time (the solution left the equations' domain). */
+    stoppedEarly: { time: number; reason: string } | null;
+    /** "continuous" or the controller's sample period in seconds. */
+    controller: "continuous" | number;
+    warnings: string[];
+  };
+  /** `robustness`: the fixed gain over parameter changes (operating point re-solved each sample). */
+  robustness?: {
+    parameterNames: string[];
+    samples: number;
+    allStable: boolean;
+    failedSamples: number;
+    /** Over samples, single-input loops only (null otherwise or infinite everywhere). */
+    worstGainMarginDb: number | null;
+    worstPhaseMarginDeg: number | null;
+    /** The closed-loop poles of every sample, together. */
+    poleCloud: ComplexJson[];
+    /** The largest real part in the pole cloud (null when every sample failed). */
+    largestRealPart: number | null;
+    marginsNote: string;
   };
   checks: Check[];
   warnings: string[];

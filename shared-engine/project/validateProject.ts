@@ -5,6 +5,7 @@
  */
 import { EngineError } from "../errors";
 import { Checker, shape, type Finding, type Path } from "./checker";
+import { checkNonlinearModel, checkNonlinearVariantKeys, type PlantDims } from "./validateNonlinear";
 import {
   PROJECT_FORMAT,
   PROJECT_VERSION,
@@ -34,7 +35,7 @@ export function validateProject(value: unknown): ValidatedProject {
   c.string(top.description, ["description"], { optional: true });
   c.string(top.notes, ["notes"], { optional: true });
 
-  const plantDims = new Map<string, { n: number; m: number; p: number; q: number; outputs: string[]; discrete: boolean }>();
+  const plantDims = new Map<string, PlantDims>();
   const plants = c.array(top.plants, ["plants"], { nonEmpty: true }) ?? [];
   plants.forEach((plant, i) => {
     const dims = checkPlant(c, plant, ["plants", i]);
@@ -152,7 +153,7 @@ function checkComplexList(c: Checker, value: unknown, path: Path, options: { non
   return list as ComplexSpec[];
 }
 
-function checkPlant(c: Checker, value: unknown, path: Path): { n: number; m: number; p: number; q: number; outputs: string[]; discrete: boolean } | null {
+function checkPlant(c: Checker, value: unknown, path: Path): PlantDims | null {
   const plant = c.object(value, path, ["id", "name", "description", "model"]);
   if (!plant) return null;
   checkId(c, plant.id, [...path, "id"]);
@@ -163,8 +164,9 @@ function checkPlant(c: Checker, value: unknown, path: Path): { n: number; m: num
   if (type === "state-space") return checkStateSpace(c, plant.model, mpath);
   if (type === "transfer-function") return checkTransferFunction(c, plant.model, mpath);
   if (type === "zero-pole-gain") return checkZeroPoleGain(c, plant.model, mpath);
+  if (type === "nonlinear") return checkNonlinearModel(c, plant.model, mpath);
   if (plant.model === undefined || plant.model === null || typeof plant.model !== "object") c.problem(mpath, "is required: an object with a \"type\"");
-  else c.problem([...mpath, "type"], `must be "state-space", "transfer-function" or "zero-pole-gain", is ${JSON.stringify(type)}`);
+  else c.problem([...mpath, "type"], `must be "state-space", "transfer-function", "zero-pole-gain" or "nonlinear", is ${JSON.stringify(type)}`);
   return null;
 }
 
@@ -292,11 +294,11 @@ function checkVariant(
   c: Checker,
   value: unknown,
   path: Path,
-  plants: Map<string, { n: number; m: number; p: number; q: number; outputs: string[]; discrete: boolean }>,
+  plants: Map<string, PlantDims>,
 ): void {
   const v = c.object(value, path, [
     "id", "name", "description", "plant", "parent", "baseline", "discretize", "stateFeedback", "integralAction",
-    "referenceFeedforward", "observer", "bode", "margins", "step", "notes",
+    "referenceFeedforward", "observer", "bode", "margins", "step", "nonlinearCheck", "robustness", "notes",
   ]);
   if (!v) return;
   checkId(c, v.id, [...path, "id"]);
@@ -407,6 +409,7 @@ function checkVariant(
       if (mg.feedback !== undefined && dims && (dims.m !== 1 || dims.p !== 1)) c.problem([...path, "margins", "feedback"], `needs a single-input single-output plant (this one has ${dims.m} inputs and ${dims.p} outputs)`);
     }
   }
+  checkNonlinearVariantKeys(c, v, path, dims);
   if (v.step !== undefined) {
     const s = c.object(v.step, [...path, "step"], ["times"]);
     if (s) {

@@ -49,6 +49,23 @@ describe("loopwright design on the example projects", () => {
     }
   });
 
+  it("reports the queue example's nonlinear results in the readable report and in --json", async () => {
+    const json = JSON.parse((await cli(["design", `${EXAMPLES}/queue-backlog.loopwright.json`, "--json"])).out) as DesignRunResult;
+    const check = json.variants.find((v) => v.id === "lqr-integral-1s")!;
+    expect(check.plant!.operatingPoint!.inputs.requested_consumers).toBeCloseTo(40, 10); // c = λ(K+q)/(μq) = 2000·12000/(60·10000)
+    expect(check.plant!.linearization!.A[0]![1]).toBeCloseTo(-50, 10); // −μq/(K+q), hand-derived
+    expect(check.nonlinear!.time.length).toBeGreaterThan(10);
+    expect(check.checks.map((c) => c.name)).toContain("nonlinear-agrees");
+    const robust = json.variants.find((v) => v.id === "lqr-integral-robust")!;
+    expect(robust.robustness!.samples).toBe(25);
+    expect(robust.checks.map((c) => c.name)).toContain("robust-stability");
+    const text = (await cli(["design", `${EXAMPLES}/queue-backlog.loopwright.json`])).out;
+    expect(text).toMatch(/operating point \(residual .*Newton iterations\):\n    states: backlog = 10000, consumers = 40/);
+    expect(text).toMatch(/linearization at the operating point .*\n    A = \[ -0\.0333333  -50; 0  -0\.05 \]/);
+    expect(text).toMatch(/nonlinear check \(controller sampled at 1 s, \d+ times to 600 s\): largest divergence/);
+    expect(text).toMatch(/robustness \(mu, K; 25 samples\): all stable/);
+  });
+
   it.each(files)("designs every variant of %s and matches its golden JSON", async (file) => {
     const r = await cli(["design", `${EXAMPLES}/${file}`, "--json"]);
     expect(r.code, r.err).toBe(0);
@@ -109,8 +126,12 @@ describe("loopwright validate", () => {
   });
 
   it("names every problem by its JSON path and exits 1", async () => {
-    const bad = JSON.parse(readFileSync(`${EXAMPLES}/queue-backlog.loopwright.json`, "utf8")) as { plants: { model: { B: number[][] } }[]; variants: { plant: string }[] };
-    bad.plants[0]!.model.B = [[0], [1], [2]];
+    const bad = JSON.parse(readFileSync(`${EXAMPLES}/queue-backlog.loopwright.json`, "utf8")) as {
+      plants: { model: { B: number[][]; stateEquations: Record<string, string> } }[];
+      variants: { plant: string }[];
+    };
+    bad.plants[1]!.model.B = [[0], [1], [2]];
+    bad.plants[0]!.model.stateEquations.backlog = "arrival_rate - (consumers";
     bad.variants[1]!.plant = "missing";
     let out = "";
     const io: CliIo = { stdout: (t) => { out += t; }, stderr: (t) => { out += t; }, readFile: async () => JSON.stringify(bad) };
@@ -118,7 +139,9 @@ describe("loopwright validate", () => {
     expect(code).toBe(1);
     const verdict = JSON.parse(out) as { valid: boolean; problems: { path: string; message: string }[] };
     expect(verdict.valid).toBe(false);
-    expect(verdict.problems).toContainEqual({ path: "plants[0].model.B", message: "must have 2 rows like A, has 3" });
+    expect(verdict.problems).toContainEqual({ path: "plants[1].model.B", message: "must have 2 rows like A, has 3" });
+    // The nonlinear plant's equation: path, column and what the parser expected.
+    expect(verdict.problems).toContainEqual({ path: "plants[0].model.stateEquations.backlog", message: "at column 26: expected ')' to close the ( at column 16, found the end of the expression" });
     expect(verdict.problems.map((p) => p.path)).toContain("variants[1].plant");
   });
 });
