@@ -34,6 +34,13 @@ export default tseslint.config(
       "no-restricted-imports": [
         "error",
         {
+          paths: [
+            {
+              name: "ml-matrix",
+              importNames: ["EigenvalueDecomposition", "EVD"],
+              message: "ml-matrix's eigen-decomposition has no iteration cap and was seen looping forever on badly scaled input: use eigenvalues/eigenvectors/realSchur from shared-engine/linalg.",
+            },
+          ],
           patterns: [
             { regex: "(^|/)(main|renderer)(/|$)", message: ENGINE_MESSAGE },
             { regex: nodeBuiltinRegex, message: ENGINE_MESSAGE },

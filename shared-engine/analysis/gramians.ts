@@ -2,9 +2,9 @@
  * Controllability and observability Gramians of stable models (Lyapunov / Stein equations) and
  * the Hankel singular values.
  */
-import { EigenvalueDecomposition, Matrix, SingularValueDecomposition } from "ml-matrix";
+import { Matrix, SingularValueDecomposition } from "ml-matrix";
 import { EngineError } from "../errors";
-import { solveContinuousLyapunov, solveDiscreteLyapunov } from "../linalg";
+import { realSchur, solveContinuousLyapunov, solveDiscreteLyapunov } from "../linalg";
 import type { StateSpace } from "../model";
 import { stability } from "./stability";
 
@@ -107,11 +107,15 @@ function relativeResidual(A: Matrix, W: Matrix, Q: Matrix, discrete: boolean): n
   return scale === 0 ? 0 : R.norm("frobenius") / scale;
 }
 
-/** L with W = L Lᵀ for symmetric positive semidefinite W (eigenvalues below 0 set to 0). */
+/**
+ * L with W = L Lᵀ for symmetric positive semidefinite W (eigenvalues below 0 set to 0). The
+ * eigen-decomposition of the symmetric W is its real Schur form W = Q T Qᵀ (T diagonal up to
+ * rounding), computed by our capped Francis QR: ml-matrix's eigen-decomposition has no
+ * iteration cap and is never run on user data.
+ */
 function symmetricFactor(W: Matrix): Matrix {
-  const evd = new EigenvalueDecomposition(W, { assumeSymmetric: true });
-  const V = evd.eigenvectorMatrix;
-  const d = evd.realEigenvalues;
+  const { T, Q: V } = realSchur(W);
+  const d = Array.from({ length: T.rows }, (_, j) => T.get(j, j));
   const L = V.clone();
   for (let j = 0; j < d.length; j++) {
     const s = Math.sqrt(Math.max(0, d[j]!));

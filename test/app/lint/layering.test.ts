@@ -45,3 +45,10 @@ describe("lint layering rules", () => {
     expect(await restrictedImportMessages(filePath, code)).toEqual([]);
   });
 });
+
+describe("lint guard on ml-matrix's uncapped eigen-decomposition", () => {
+  it("rejects EigenvalueDecomposition in the engine", async () => {
+    const messages = await restrictedImportMessages("shared-engine/analysis/bad.ts", `import { EigenvalueDecomposition } from "ml-matrix"; export const x = EigenvalueDecomposition;`);
+    expect(messages.join(" ")).toMatch(/no iteration cap/);
+  });
+});
