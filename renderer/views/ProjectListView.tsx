@@ -1,10 +1,10 @@
-import { MAX_PROJECT_NAME_LENGTH } from "../db";
+import { MAX_PROJECT_NAME_LENGTH, type ProjectRecord } from "../db";
 import type { ProjectListStore } from "../state/projectListStore";
 import { ProjectRow } from "./ProjectRow";
 import { useStoreState } from "./useStoreState";
 
 /** The first screen: every project on this machine, with create, rename and delete. */
-export function ProjectListView({ store }: { store: ProjectListStore }) {
+export function ProjectListView({ store, onOpen }: { store: ProjectListStore; onOpen?: (project: ProjectRecord) => void }) {
   const state = useStoreState(store);
   const count = state.projects.length;
   return (
@@ -99,7 +99,7 @@ export function ProjectListView({ store }: { store: ProjectListStore }) {
           </thead>
           <tbody>
             {state.projects.map((project) => (
-              <ProjectRow key={project.id} project={project} state={state} store={store} />
+              <ProjectRow key={project.id} project={project} state={state} store={store} onOpen={onOpen} />
             ))}
           </tbody>
         </table>

@@ -1,0 +1,306 @@
+import { useEffect, useState } from "react";
+import type { PlantSpec } from "../../../shared-engine/api/contract";
+import {
+  matrixOf,
+  parseComplexListText,
+  parseNumberText,
+  parseVectorText,
+  renameSignalCommand,
+  resizeDimensions,
+  setModel,
+  setModelCommand,
+  setUnitCommand,
+  signalNames,
+  signalUnits,
+  stateSpaceDimensions,
+  type MatrixName,
+  type ModelSpec,
+  type PlantDimensions,
+  type SignalKind,
+  type WorkspaceState,
+  type WorkspaceStore,
+} from "../../state/workspace";
+import { MatrixGrid } from "./MatrixGrid";
+
+interface Props {
+  store: WorkspaceStore;
+  state: WorkspaceState;
+  plant: PlantSpec;
+}
+
+const KIND_LABEL: Record<SignalKind, string> = { states: "States", inputs: "Inputs", outputs: "Outputs", disturbances: "Disturbances" };
+const CAPTION: Record<MatrixName, string> = {
+  A: "state → state rate",
+  B: "input → state rate",
+  F: "disturbance → state rate",
+  C: "state → output",
+  D: "input → output",
+  E: "disturbance → output",
+};
+
+function defaultModel(type: ModelSpec["type"], sampleTime: number | null): ModelSpec {
+  if (type === "transfer-function") return { type, numerator: [1], denominator: [1, 1], sampleTime };
+  if (type === "zero-pole-gain") return { type, zeros: [], poles: [-1], gain: 1, sampleTime };
+  return { type: "state-space", A: [[-1]], B: [[1]], C: [[1]], D: [[0]], sampleTime };
+}
+
+/** The plant: its form, dimensions, signal names and units, and the matrices or coefficients. */
+export function PlantEditor({ store, state, plant }: Props) {
+  const model = plant.model;
+  return (
+    <div className="plant-editor">
+      <fieldset className="form-row">
+        <legend>Model form</legend>
+        {(
+          [
+            ["state-space", "State space (A, B, F; C, D, E)"],
+            ["transfer-function", "Transfer function"],
+            ["zero-pole-gain", "Zeros, poles and gain"],
+          ] as const
+        ).map(([type, text]) => (
+          <label key={type} className="choice">
+            <input
+              type="radio"
+              name={`form-${plant.id}`}
+              checked={model.type === type}
+              onChange={() => setModelCommand(store, plant.id, defaultModel(type, model.sampleTime), `started a new ${text.toLowerCase()} model`)}
+            />
+            {text}
+          </label>
+        ))}
+        <p className="muted hint">Switching the form starts a new model; Undo (Ctrl+Z) brings the previous one back.</p>
+      </fieldset>
+      <PlantSampleTime store={store} state={state} plant={plant} />
+      {model.type === "state-space" && <StateSpaceEditor store={store} state={state} plant={plant} />}
+      {model.type === "transfer-function" && <TransferFunctionEditor store={store} state={state} plant={plant} />}
+      {model.type === "zero-pole-gain" && <ZeroPoleGainEditor store={store} state={state} plant={plant} />}
+      {model.type === "nonlinear" && <p className="muted">This plant is given by nonlinear equations; this workspace designs on its linearization and does not edit the equations yet.</p>}
+    </div>
+  );
+}
+
+function PlantSampleTime({ store, state, plant }: Props) {
+  const key = `${plant.id}:sampleTime`;
+  const draft = state.drafts[key];
+  const shown = draft?.text ?? (plant.model.sampleTime === null ? "" : String(plant.model.sampleTime));
+  const [text, setText] = useState(shown);
+  useEffect(() => setText(shown), [shown]);
+  const commit = () =>
+    store.editText(key, text, `set the plant's sample period to ${text.trim() || "continuous"}`, (t) => {
+      if (t.trim() === "") return { ok: true, apply: (doc) => setModel(doc, plant.id, { ...plant.model, sampleTime: null } as ModelSpec) };
+      const n = parseNumberText(t);
+      if (!n.ok || !(n.value > 0)) return { ok: false, error: "The sample period must be a positive number of seconds (or empty for a continuous plant)." };
+      return { ok: true, apply: (doc) => setModel(doc, plant.id, { ...plant.model, sampleTime: n.value } as ModelSpec) };
+    });
+  return (
+    <div className="form-row">
+      <label htmlFor={`plant-ts-${plant.id}`}>Plant sample period (s)</label>
+      <input
+        id={`plant-ts-${plant.id}`}
+        className="text-input num short"
+        value={text}
+        placeholder="continuous"
+        aria-invalid={draft ? true : undefined}
+        onChange={(e) => setText(e.target.value)}
+        onBlur={commit}
+        onKeyDown={(e) => e.key === "Enter" && commit()}
+      />
+      {draft ? <span className="error-text">{draft.error}</span> : <span className="muted hint">empty: continuous time</span>}
+    </div>
+  );
+}
+
+function DimensionControls({ store, plant, dims }: { store: WorkspaceStore; plant: PlantSpec; dims: PlantDimensions }) {
+  const [draft, setDraft] = useState(dims);
+  useEffect(() => setDraft(dims), [dims.states, dims.inputs, dims.outputs, dims.disturbances]);
+  const changed = (Object.keys(dims) as SignalKind[]).some((k) => draft[k] !== dims[k]);
+  return (
+    <form
+      className="form-row dimension-row"
+      onSubmit={(e) => {
+        e.preventDefault();
+        resizeDimensions(store, plant.id, draft);
+      }}
+    >
+      {(Object.keys(KIND_LABEL) as SignalKind[]).map((kind) => (
+        <label key={kind} className="dimension">
+          {KIND_LABEL[kind]}
+          <input
+            type="number"
+            className="text-input num tiny"
+            min={kind === "disturbances" ? 0 : 1}
+            max={60}
+            value={draft[kind]}
+            onChange={(e) => setDraft({ ...draft, [kind]: Math.round(Number(e.target.value)) })}
+          />
+        </label>
+      ))}
+      <button type="submit" className="button-quiet small" disabled={!changed}>
+        Apply sizes
+      </button>
+    </form>
+  );
+}
+
+function SignalTable({ store, state, plant, dims }: Props & { dims: PlantDimensions }) {
+  if (plant.model.type !== "state-space") return null;
+  const model = plant.model;
+  return (
+    <details className="signal-table" open>
+      <summary>Signal names and units</summary>
+      <div className="signal-columns">
+        {(Object.keys(KIND_LABEL) as SignalKind[])
+          .filter((k) => dims[k] > 0)
+          .map((kind) => {
+            const names = signalNames(model.names, kind, dims[kind]);
+            const units = signalUnits(model.units, kind, dims[kind]);
+            return (
+              <fieldset key={kind} className="signal-kind">
+                <legend>{KIND_LABEL[kind]}</legend>
+                {names.map((name, i) => {
+                  const key = `${plant.id}:name:${kind}:${i}`;
+                  const draft = state.drafts[key];
+                  return (
+                    <div key={i} className="signal-row">
+                      <TextCommitField value={draft?.text ?? name} invalid={!!draft} label={`Name of ${kind.slice(0, -1)} ${i + 1}`} onCommit={(t) => renameSignalCommand(store, plant.id, kind, i, t)} />
+                      <TextCommitField value={units[i] ?? ""} label={`Unit of ${name}`} placeholder="unit" onCommit={(t) => setUnitCommand(store, plant.id, kind, i, t)} small />
+                      {draft && <span className="error-text small-text">{draft.error}</span>}
+                    </div>
+                  );
+                })}
+              </fieldset>
+            );
+          })}
+      </div>
+    </details>
+  );
+}
+
+function TextCommitField({ value, label, onCommit, invalid, placeholder, small }: { value: string; label: string; onCommit: (t: string) => void; invalid?: boolean; placeholder?: string; small?: boolean }) {
+  const [text, setText] = useState(value);
+  useEffect(() => setText(value), [value]);
+  return (
+    <input
+      className={`text-input ${small ? "unit-input" : "name-input"}`}
+      aria-label={label}
+      aria-invalid={invalid ? true : undefined}
+      value={text}
+      placeholder={placeholder}
+      onChange={(e) => setText(e.target.value)}
+      onBlur={() => text !== value && onCommit(text)}
+      onKeyDown={(e) => e.key === "Enter" && text !== value && onCommit(text)}
+    />
+  );
+}
+
+function StateSpaceEditor({ store, state, plant }: Props) {
+  if (plant.model.type !== "state-space") return null;
+  const model = plant.model;
+  const dims = stateSpaceDimensions(model);
+  const names = (k: SignalKind) => signalNames(model.names, k, dims[k]);
+  const units = (k: SignalKind) => signalUnits(model.units, k, dims[k]);
+  const matrices: MatrixName[] = dims.disturbances > 0 ? ["A", "B", "F", "C", "D", "E"] : ["A", "B", "C", "D"];
+  return (
+    <>
+      <DimensionControls store={store} plant={plant} dims={dims} />
+      <SignalTable store={store} state={state} plant={plant} dims={dims} />
+      <p className="muted hint equation">
+        dx/dt = A x + B u + F w, y = C x + D u + E w {model.sampleTime !== null ? "(sampled: x[k+1] on the left)" : ""}
+      </p>
+      <div className="matrix-list">
+        {matrices.map((m) => {
+          const [rk, ck] = { A: ["states", "states"], B: ["states", "inputs"], F: ["states", "disturbances"], C: ["outputs", "states"], D: ["outputs", "inputs"], E: ["outputs", "disturbances"] }[m] as [SignalKind, SignalKind];
+          return (
+            <MatrixGrid
+              key={m}
+              store={store}
+              state={state}
+              plantId={plant.id}
+              name={m}
+              matrix={matrixOf(model, m)}
+              rowNames={names(rk)}
+              rowUnits={units(rk)}
+              columnNames={names(ck)}
+              columnUnits={units(ck)}
+              caption={CAPTION[m]}
+            />
+          );
+        })}
+      </div>
+    </>
+  );
+}
+
+function CoefficientField({ store, state, plant, field, label, value, parse }: Props & { field: string; label: string; value: string; parse: (t: string) => { ok: true; model: ModelSpec } | { ok: false; error: string } }) {
+  const key = `${plant.id}:${field}`;
+  const draft = state.drafts[key];
+  const [text, setText] = useState(draft?.text ?? value);
+  useEffect(() => setText(draft?.text ?? value), [value, draft?.text]);
+  const commit = () =>
+    store.editText(key, text, `set the ${label.toLowerCase()} of plant ${plant.id}`, (t) => {
+      const r = parse(t);
+      return r.ok ? { ok: true, apply: (doc) => setModel(doc, plant.id, r.model) } : r;
+    });
+  const id = `coef-${plant.id}-${field}`;
+  return (
+    <div className="form-row coefficient-row">
+      <label htmlFor={id}>{label}</label>
+      <input id={id} className="text-input num wide" value={text} aria-invalid={draft ? true : undefined} onChange={(e) => setText(e.target.value)} onBlur={commit} onKeyDown={(e) => e.key === "Enter" && commit()} />
+      {draft && (
+        <span className="error-text" role="alert">
+          {draft.error}
+        </span>
+      )}
+    </div>
+  );
+}
+
+function TransferFunctionEditor(props: Props) {
+  const model = props.plant.model;
+  if (model.type !== "transfer-function") return null;
+  if (!Array.isArray(model.numerator) || Array.isArray(model.numerator[0])) {
+    return <p className="muted">This plant has a transfer function per input–output pair; edit it in the project file, or switch to state space.</p>;
+  }
+  const vec = (v: unknown) => (v as number[]).join(" ");
+  const parser = (which: "numerator" | "denominator") => (t: string) => {
+    const r = parseVectorText(t);
+    if (!r.ok) return r;
+    if (which === "denominator" && (r.values[0] ?? 0) === 0) return { ok: false as const, error: "The leading denominator coefficient must not be zero." };
+    return { ok: true as const, model: { ...model, [which]: r.values } as ModelSpec };
+  };
+  return (
+    <div className="coefficients">
+      <p className="muted hint">Coefficients, highest power of s (or z) first, e.g. “1 3 2” for s² + 3s + 2.</p>
+      <CoefficientField {...props} field="numerator" label="Numerator" value={vec(model.numerator)} parse={parser("numerator")} />
+      <CoefficientField {...props} field="denominator" label="Denominator" value={vec(model.denominator)} parse={parser("denominator")} />
+    </div>
+  );
+}
+
+function ZeroPoleGainEditor(props: Props) {
+  const model = props.plant.model;
+  if (model.type !== "zero-pole-gain") return null;
+  const list = (v: typeof model.zeros) => v.map((z) => (typeof z === "number" ? String(z) : z.im === 0 ? String(z.re) : `${z.re}${z.im < 0 ? "-" : "+"}${Math.abs(z.im)}i`)).join(", ");
+  const parser = (which: "zeros" | "poles") => (t: string) => {
+    const r = parseComplexListText(t);
+    if (!r.ok) return r;
+    return { ok: true as const, model: { ...model, [which]: r.values } as ModelSpec };
+  };
+  return (
+    <div className="coefficients">
+      <p className="muted hint">Comma-separated; complex values as “−2+3i”, or a pair as “−2±3i”.</p>
+      <CoefficientField {...props} field="zeros" label="Zeros" value={list(model.zeros)} parse={parser("zeros")} />
+      <CoefficientField {...props} field="poles" label="Poles" value={list(model.poles)} parse={parser("poles")} />
+      <CoefficientField
+        {...props}
+        field="gain"
+        label="Gain"
+        value={String(model.gain)}
+        parse={(t) => {
+          const n = parseNumberText(t);
+          return n.ok ? { ok: true, model: { ...model, gain: n.value } } : { ok: false, error: `The gain ${n.error}.` };
+        }}
+      />
+    </div>
+  );
+}
