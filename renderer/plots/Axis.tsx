@@ -3,6 +3,20 @@
  * plot area, and the axis title (quantity and unit). React renders; axisModel.ts computes.
  */
 import type { AxisModel } from "./axisModel";
+import { textSize } from "./labelPlacement";
+
+/** Font size (px) of tick labels (plots.css .lw-tick-label). */
+const TICK_FONT = 10.5;
+
+/**
+ * x of a left axis title's baseline (the text is rotated): clear of the widest tick label (tick
+ * 5, gap 3, label, 5 more for the title's descenders), 44 left of the axis at least, and never
+ * closer than 10 to the SVG's left edge.
+ */
+export function leftTitleX(model: AxisModel, offset: number, hideLabels = false): number {
+  const widest = hideLabels ? 0 : Math.max(0, ...model.ticks.filter((t) => t.label).map((t) => textSize(t.label, TICK_FONT).width));
+  return Math.max(10, offset - Math.max(44, 5 + 3 + widest + 5));
+}
 
 export interface AxisProps {
   model: AxisModel;
@@ -59,7 +73,7 @@ export function Axis({ model, orientation, offset, gridLength = 0, title = "", h
             {title}
           </text>
         ) : (
-          <text className="lw-axis-title" transform={`translate(${offset - 44},${(r0 + r1) / 2}) rotate(-90)`} textAnchor="middle">
+          <text className="lw-axis-title" transform={`translate(${leftTitleX(model, offset, hideLabels)},${(r0 + r1) / 2}) rotate(-90)`} textAnchor="middle">
             {title}
           </text>
         ))}

@@ -124,18 +124,18 @@ export function ResponsePlot(props: ResponsePlotProps) {
               </g>
             ))}
             {key === "outputs" && model.metrics.map((m) => (
-              <g key={`l${m.seriesIndex}`} className="lw-metric-labels">
-                {m.rise && <text className="lw-metric-label" x={m.rise.x2 + 3} y={panel.top + panel.height - 6 - 12 * m.seriesIndex}>{m.rise.label}</text>}
+              <g key={`l${m.seriesIndex}`} className="lw-metric-marks">
                 {m.settling?.x != null && <line className="lw-settling-line" x1={m.settling.x} x2={m.settling.x} y1={panel.top} y2={panel.top + panel.height} stroke={model.styles[m.seriesIndex]!.color} />}
-                {m.settling && <text className="lw-metric-label" x={(m.settling.x ?? right - 150) + 3} y={Math.min(m.settling.y1, m.settling.y2) - 4 - 12 * m.seriesIndex}>{m.settling.label}</text>}
-                {m.peak && (
-                  <g transform={`translate(${m.peak.x},${m.peak.y})`}>
-                    <path className="lw-peak-mark" d="M0,-7L-4,-13H4Z" fill={model.styles[m.seriesIndex]!.color} />
-                    <text className="lw-metric-label" x={6} y={-10 - 12 * m.seriesIndex}>{m.peak.label}</text>
-                  </g>
-                )}
+                {m.peak && <path className="lw-peak-mark" transform={`translate(${m.peak.x},${m.peak.y})`} d="M0,-7L-4,-13H4Z" fill={model.styles[m.seriesIndex]!.color} />}
               </g>
             ))}
+            {key === "outputs" && (
+              <g className="lw-metric-labels">
+                {model.labels.map((l) => (
+                  <text key={`${l.seriesIndex}-${l.kind}`} className={`lw-metric-label lw-metric-${l.kind}`} x={l.x} y={l.y}>{l.text}</text>
+                ))}
+              </g>
+            )}
             {screen && hover !== null && <line className="lw-hover-line" data-export="omit" x1={model.x(hover)} x2={model.x(hover)} y1={panel.top} y2={panel.top + panel.height} />}
           </g>
         </g>

@@ -61,6 +61,28 @@ export function steppedTicks(domain: Domain, range: Domain, step: number, maxTic
   return { kind: "linear", domain, range, ticks };
 }
 
+/** Preferred phase tick steps (degrees), best first; wider steps follow for very wide ranges. */
+export const PHASE_STEPS = [45, 90, 30, 15, 180, 360, 720, 1440];
+
+/**
+ * Phase-axis ticks at multiples of 15°, 30°, 45° or 90° (wider ranges: 180°, 360°, …): the first
+ * step of PHASE_STEPS giving between `minTicks` and `maxTicks` labelled ticks inside the domain;
+ * if none does (a span of a few degrees), plain 1-2-5 linear ticks.
+ */
+export function phaseTicks(domain: Domain, range: Domain, minTicks = 3, maxTicks = 7): AxisModel {
+  const [lo, hi] = domain[0] <= domain[1] ? domain : [domain[1], domain[0]];
+  const count = (s: number) => Math.floor(hi / s + 1e-9) - Math.ceil(lo / s - 1e-9) + 1;
+  const step = PHASE_STEPS.find((s) => { const n = count(s); return n >= minTicks && n <= maxTicks; });
+  if (step === undefined) return linearTicks(domain, range, minTicks + 1);
+  const scale = scaleLinear().domain(domain).range(range);
+  const ticks: Tick[] = [];
+  for (let k = Math.ceil(lo / step - 1e-9); k * step <= hi + step * 1e-9; k++) {
+    const value = k === 0 ? 0 : k * step;
+    ticks.push({ value, position: scale(value), label: tickLabel(value), major: true });
+  }
+  return { kind: "linear", domain, range, ticks };
+}
+
 /**
  * Logarithmic ticks: every decade is a major tick; decades are labelled (every 2nd or 3rd when
  * the span is wide, so labels never crowd); minor ticks at 2…9 × 10^k when the span is at most

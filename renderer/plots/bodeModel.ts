@@ -4,7 +4,7 @@
  * hover read-out. Pure; BodePlot.tsx draws it.
  */
 import { line, scaleLinear, scaleLog, type ScaleLinear, type ScaleLogarithmic } from "d3";
-import { decadeDomain, linearTicks, logTicks, niceDomain, steppedTicks, type AxisModel } from "./axisModel";
+import { decadeDomain, linearTicks, logTicks, niceDomain, phaseTicks, type AxisModel } from "./axisModel";
 import { seriesStyle, type SeriesStyle } from "./palette";
 import { fullPrecision, isDrawable, type Domain } from "./plotTypes";
 
@@ -165,7 +165,7 @@ export function bodeModel(input: BodeModelInput): BodeModel {
     xAxis: logTicks(xDomain, [left, left + plotWidth]),
     left, width: plotWidth,
     magnitude: { y: magY, axis: linearTicks(magDomain, [magTop + panelHeight, magTop], 5), top: magTop, height: panelHeight },
-    phase: { y: phaseY, axis: steppedTicks(phaseDomain, [phaseTop + panelHeight, phaseTop], 45, 6), top: phaseTop, height: panelHeight },
+    phase: { y: phaseY, axis: phaseTicks(phaseDomain, [phaseTop + panelHeight, phaseTop], 3, Math.max(3, Math.min(7, Math.floor(panelHeight / 24)))), top: phaseTop, height: panelHeight },
     series: series.map((s, si) => ({ name: s.name, style: seriesStyle(s.styleIndex ?? si), magnitudePath: path(s, s.magnitudeDb, magY), phasePath: path(s, s.phaseDeg, phaseY) })),
     marks,
     zeroDbY: within(0, magDomain) ? magY(0) : null,

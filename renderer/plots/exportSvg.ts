@@ -9,7 +9,7 @@
 export const EXPORTED_STYLE_PROPERTIES = [
   "fill", "fill-opacity", "stroke", "stroke-width", "stroke-dasharray", "stroke-opacity", "stroke-linecap",
   "stroke-linejoin", "opacity", "font-family", "font-size", "font-weight", "font-style", "text-anchor",
-  "dominant-baseline", "visibility", "display",
+  "dominant-baseline", "visibility", "display", "paint-order",
 ] as const;
 
 /** The minimal node shape the exporter reads; DOM nodes satisfy it (tests pass plain objects). */

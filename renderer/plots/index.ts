@@ -1,6 +1,6 @@
 /** Public surface of the plots: components, their pure models, export helpers and styles. */
 export { Axis, type AxisProps } from "./Axis";
-export { linearTicks, logTicks, steppedTicks, decadeDomain, niceDomain, tickLabel, type AxisModel, type Tick } from "./axisModel";
+export { linearTicks, logTicks, phaseTicks, steppedTicks, decadeDomain, niceDomain, tickLabel, type AxisModel, type Tick } from "./axisModel";
 export { PlotFrame, frameHeaderHeight, type PlotFrameProps } from "./PlotFrame";
 export { layoutLegend, legendFor, type LegendEntry } from "./legendModel";
 export { OKABE_ITO, seriesStyle, markerPath, crossPath, type SeriesStyle, type MarkerShape } from "./palette";

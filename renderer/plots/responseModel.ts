@@ -5,6 +5,7 @@
  */
 import { line, scaleLinear, type ScaleLinear } from "d3";
 import { linearTicks, niceDomain, tickLabel, type AxisModel } from "./axisModel";
+import { placeLabels, textSize, type Box, type LabelRequest } from "./labelPlacement";
 import { seriesStyle, type SeriesStyle } from "./palette";
 import { isDrawable, type Domain } from "./plotTypes";
 
@@ -48,6 +49,19 @@ export interface MetricMarks {
   peak: { x: number; y: number; label: string } | null;
 }
 
+/** Font size (px) of the metric annotations (plots.css .lw-metric-label). */
+export const METRIC_FONT = 10.5;
+
+/** A metric annotation placed by the layout pass: its text box and the text's start and baseline. */
+export interface MetricLabel {
+  seriesIndex: number;
+  kind: "settling" | "peak" | "rise";
+  text: string;
+  box: Box;
+  x: number;
+  y: number;
+}
+
 export interface ResponsePanel {
   y: ScaleLinear<number, number>;
   axis: AxisModel;
@@ -65,6 +79,8 @@ export interface ResponseModel {
   control: ResponsePanel | null;
   limits: { y: number; value: number; kind: "lower" | "upper"; seriesIndex: number }[];
   metrics: MetricMarks[];
+  /** Metric annotations laid out inside the outputs panel without overlapping each other. */
+  labels: MetricLabel[];
   styles: SeriesStyle[];
 }
 
@@ -181,8 +197,73 @@ export function responseModel(input: ResponseModelInput): ResponseModel {
     metrics.push({ seriesIndex: si, rise, settling, peak });
   });
 
+  const frame: Box = { x: left, y: top, width: plotWidth, height: outH };
+  const curves = series.flatMap((s) => s.output.map((o) => {
+    const pts: [number, number][] = [];
+    s.time.forEach((t, k) => { const v = o[k]; if (isDrawable(v) && isDrawable(t)) pts.push([x(t), outY(v)]); });
+    return pts;
+  }));
   return {
     x, xAxis: linearTicks(tDomain, [left, left + plotWidth], Math.max(3, Math.round(plotWidth / 80))),
     left, width: plotWidth, outputs, control, limits, metrics, styles,
+    labels: layoutMetricLabels(metrics, frame, curves),
   };
+}
+
+/** Peak mark (a small triangle above the peak, drawn by ResponsePlot) as a box around (x, y). */
+export function peakMarkBox(x: number, y: number): Box {
+  return { x: x - 4, y: y - 13, width: 8, height: 6 };
+}
+
+/**
+ * Places the metric texts of every series inside the outputs panel: each next to its mark when
+ * there is room (settling time right of its line above or below the ±2 % band, peak beside its
+ * triangle, rise time at the foot of its band, right of it or inside it), otherwise moved by whole rows (stacked) and kept
+ * inside the frame; labels never overlap each other, the peak marks, and avoid the curves when
+ * they can.
+ */
+export function layoutMetricLabels(metrics: readonly MetricMarks[], frame: Box, curves: readonly (readonly (readonly [number, number])[])[] = []): MetricLabel[] {
+  const right = frame.x + frame.width, bottom = frame.y + frame.height;
+  const requests: (LabelRequest & { seriesIndex: number; kind: MetricLabel["kind"] })[] = [];
+  const markBoxes: Box[] = [];
+  const lines: (readonly (readonly [number, number])[])[] = [...curves];
+  for (const m of metrics) {
+    if (m.peak) markBoxes.push(peakMarkBox(m.peak.x, m.peak.y));
+    if (m.settling?.x != null) lines.push([[m.settling.x, frame.y], [m.settling.x, bottom]]);
+  }
+  for (const m of metrics) {
+    const add = (kind: MetricLabel["kind"], text: string, candidates: (w: number, h: number) => { x: number; y: number }[]) => {
+      const { width, height } = textSize(text, METRIC_FONT);
+      requests.push({ seriesIndex: m.seriesIndex, kind, text, width, height, candidates: candidates(width, height) });
+    };
+    if (m.settling) {
+      const s = m.settling;
+      const bandTop = Math.min(s.y1, s.y2), bandBottom = Math.max(s.y1, s.y2);
+      add("settling", s.label, (w, h) => {
+        const sx = s.x ?? right - w - 7;
+        return [
+          { x: sx + 3, y: bandTop - 2 - h }, { x: sx + 3, y: bandBottom + 2 },
+          { x: sx - 3 - w, y: bandBottom + 2 }, { x: sx - 3 - w, y: bandTop - 2 - h },
+        ];
+      });
+    }
+    if (m.peak) {
+      const p = m.peak;
+      add("peak", p.label, (w, h) => [
+        { x: p.x + 6, y: p.y - 7 - h }, { x: p.x + 6, y: p.y + 4 },
+        { x: p.x - 6 - w, y: p.y + 4 }, { x: p.x - w / 2, y: p.y - 15 - h },
+      ]);
+    }
+    if (m.rise) {
+      const r = m.rise;
+      add("rise", r.label, (w, h) => [{ x: r.x2 + 3, y: bottom - 3 - h }, { x: r.x1 + 3, y: bottom - 3 - h }, { x: r.x1 - 3 - w, y: bottom - 3 - h }]);
+    }
+  }
+  const boxes = placeLabels(requests, frame, { boxes: markBoxes, lines });
+  const out: MetricLabel[] = [];
+  requests.forEach((r, i) => {
+    const b = boxes[i];
+    if (b) out.push({ seriesIndex: r.seriesIndex, kind: r.kind, text: r.text, box: b, x: b.x + 1, y: b.y + METRIC_FONT * 0.9 });
+  });
+  return out;
 }

@@ -1,5 +1,6 @@
 import { describe, expect, it } from "vitest";
 import { bodeModel, bodeReadout, interpolateAtFrequency, nearestFrequencyIndex, phaseReference, type BodeSeries } from "../../../../renderer/plots/bodeModel";
+import { phaseTicks } from "../../../../renderer/plots/axisModel";
 import { expectAtMost, expectRelativeClose } from "../../../helpers/assertions";
 
 /** L(s) = 1/(s(s+1)): |L| and ∠L in closed form (textbook integrator-plus-lag, analytic). */
@@ -86,5 +87,49 @@ describe("Bode model", () => {
     const r = bodeReadout([s], 1.2)[0]!;
     expect(r).toEqual({ name: "A", frequency: "1", magnitudeDb: "0.123456789012345", phaseDeg: "−90.00000000000001" });
     expect(bodeReadout([s], 12)[0]!.magnitudeDb).toBe("unbounded");
+  });
+
+  describe("phase axis ticks", () => {
+    const freqs = logspace(-3, 3, 301);
+    const deg = (r: number) => (r * 180) / Math.PI;
+    const cases: [string, (w: number) => number, number][] = [
+      ["first-order lag, 0…−90°", (w) => -deg(Math.atan(w)), 45],
+      ["integrator plus lag, −90…−180°", (w) => -90 - deg(Math.atan(w)), 45],
+      ["third-order lag, 0…−270°", (w) => -3 * deg(Math.atan(w)), 90],
+      ["lag with a partial lead, 0…−55°", (w) => -deg(Math.atan(w)) + deg(Math.atan(w / 5)) * 0.6, 30],
+      ["two lags, 0…−180°", (w) => -2 * deg(Math.atan(w)), 45],
+    ];
+    for (const [what, phase, typicalStep] of cases) {
+      for (const panelHeight of [110, 180]) {
+        it(`labels at least 3 ticks in steps of 15/30/45/90°: ${what}, ${panelHeight}-unit panel`, () => {
+          const s: BodeSeries = { name: what, frequency: freqs, magnitudeDb: freqs.map(() => 0), phaseDeg: freqs.map(phase) };
+          const m = bodeModel({ series: [s], ...layout, panelHeight });
+          const ticks = m.phase.axis.ticks.filter((t) => t.label !== "");
+          const [lo, hi] = m.phase.y.domain() as [number, number];
+          expect(ticks.length).toBeGreaterThanOrEqual(3);
+          expect(ticks.length).toBeLessThanOrEqual(7);
+          for (const t of ticks) {
+            expect(t.value).toBeGreaterThanOrEqual(Math.min(lo, hi));
+            expect(t.value).toBeLessThanOrEqual(Math.max(lo, hi));
+            expect(t.label).toBe(String(t.value).replace("-", "−"));
+          }
+          const steps = new Set(ticks.slice(1).map((t, i) => t.value - ticks[i]!.value));
+          expect(steps.size).toBe(1);
+          const step = [...steps][0]!;
+          expect([15, 30, 45, 90]).toContain(step);
+          if (panelHeight === 180) expect(step).toBe(typicalStep);
+          // Ticks are multiples of the step, so 0° and −90°/−180° lines fall on ticks when in range.
+          for (const t of ticks) expect(Math.abs(t.value % step)).toBe(0);
+        });
+      }
+    }
+
+    it("picks 30° when 45° would give only two ticks, and falls back to plain ticks for a few degrees", () => {
+      expect(phaseTicks([-65, 5], [0, 100]).ticks.map((t) => t.value)).toEqual([-60, -30, 0]);
+      expect(phaseTicks([-35, 5], [0, 100]).ticks.map((t) => t.value)).toEqual([-30, -15, 0]);
+      expect(phaseTicks([-300, 20], [0, 100], 3, 5).ticks.map((t) => t.value)).toEqual([-270, -180, -90, 0]);
+      expect(phaseTicks([-12, 2], [0, 100]).ticks.length).toBeGreaterThanOrEqual(3);
+      expect(phaseTicks([-760, 20], [0, 100]).ticks.map((t) => t.value)).toEqual([-720, -540, -360, -180, 0]);
+    });
   });
 });

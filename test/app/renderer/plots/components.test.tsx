@@ -1,6 +1,8 @@
 import { renderToStaticMarkup } from "react-dom/server";
 import { describe, expect, it } from "vitest";
+import { leftTitleX } from "../../../../renderer/plots/Axis";
 import { BodePlot } from "../../../../renderer/plots/BodePlot";
+import { textSize } from "../../../../renderer/plots/labelPlacement";
 import { ParameterLocusPlot } from "../../../../renderer/plots/ParameterLocusPlot";
 import { PoleZeroMap } from "../../../../renderer/plots/PoleZeroMap";
 import { ResponsePlot } from "../../../../renderer/plots/ResponsePlot";
@@ -114,5 +116,24 @@ describe("rendered plot structure", () => {
     expect(html).toContain("start (m = 1)");
     expect(html).toContain("end (m = 3)");
     expect(html).toContain("Poles as Mass m varies");
+  });
+
+  it("draws each metric annotation once, as laid out by the model, in the outputs panel", () => {
+    const time = Array.from({ length: 101 }, (_, k) => k * 0.1);
+    const y = time.map((t) => 1 - Math.exp(-t) * Math.cos(2 * t));
+    const html = renderToStaticMarkup(
+      <ResponsePlot variant="print" series={[{ name: "A", time, output: [y], metrics: { settlingTime: 3.9, peak: Math.max(...y), peakTime: 1.2, overshootPct: 10, steadyStateValue: 1 } }]} />,
+    );
+    expect(count(html, /class="lw-metric-label lw-metric-(settling|peak|rise)"/g)).toBe(3);
+    expect(html).not.toMatch(/NaN/);
+  });
+
+  it("moves a left axis title clear of wide tick labels, but keeps it inside the SVG", () => {
+    const model = (labels: string[]) => ({ kind: "linear" as const, domain: [0, 1] as [number, number], range: [100, 0] as [number, number], ticks: labels.map((label, i) => ({ value: i, position: i * 10, label, major: true })) });
+    expect(leftTitleX(model(["0", "1"]), 62)).toBe(18);
+    const wide = leftTitleX(model(["−0.004", "−0.002", "0"]), 80);
+    // The title's descenders (about 3 units right of its baseline) stay left of the widest label.
+    expect(wide + 3).toBeLessThan(80 - 8 - textSize("−0.004", 10.5).width);
+    expect(leftTitleX(model(["−0.0000125"]), 62)).toBe(10);
   });
 });

@@ -1,5 +1,6 @@
 import { describe, expect, it } from "vitest";
-import { MIN_LABEL_GAP, poleZeroDomain, poleZeroModel, ZETA_GUIDES } from "../../../../renderer/plots/poleZeroModel";
+import { boxesOverlap, boxInside, type Box } from "../../../../renderer/plots/labelPlacement";
+import { glyphBox, LABEL_GAP, poleZeroDomain, poleZeroModel, rayEndLabelCentre, ZETA_GUIDES, type PoleZeroModel } from "../../../../renderer/plots/poleZeroModel";
 import { expectAtMost, expectRelativeClose } from "../../../helpers/assertions";
 
 const margins = { top: 20, right: 10, bottom: 40, left: 50 };
@@ -41,18 +42,11 @@ describe("continuous-time pole-zero map", () => {
       // Damping ratio of s = re + j im is −re/|s| (definition); paths are rounded to 0.01 px.
       expectRelativeClose(-re / Math.hypot(re, im), ray.value, 1e-3, `ζ of ray end`);
       expect(["", `ζ ${ray.value}`]).toContain(ray.label);
-      // Labels lie inside the plot area, on one circle about the origin.
-      expect(ray.labelX).toBeGreaterThanOrEqual(model.plot.left);
-      expect(ray.labelY).toBeGreaterThanOrEqual(model.plot.top);
     }
-    const radii = rays.map((r) => Math.hypot(model.x.invert(r.labelX), model.y.invert(r.labelY)));
-    for (const r of radii) expectRelativeClose(r, radii[0]!, 1e-3, "label radius");
-    // Kept labels keep their distance; ζ = 0.9 (the widest-spaced) is always labelled.
-    const kept = rays.filter((r) => r.label !== "");
-    expect(kept.at(-1)!.value).toBe(0.9);
-    for (let i = 1; i < kept.length; i++) {
-      expect(Math.hypot(kept[i]!.labelX - kept[i - 1]!.labelX, kept[i]!.labelY - kept[i - 1]!.labelY)).toBeGreaterThanOrEqual(MIN_LABEL_GAP);
-    }
+  });
+
+  it("labels each ζ ray at its outer end, just inside the frame, on the ray, without overlaps", () => {
+    checkZetaLabels(model);
   });
 
   it("draws natural-frequency circles as left half circles of radius ωn, labelled with ωn", () => {
@@ -64,8 +58,14 @@ describe("continuous-time pole-zero map", () => {
       expectRelativeClose(model.y.invert(Number(m![2])), c.value, 1e-3, "start at +jωn");
       expectRelativeClose(model.y.invert(Number(m![6])), -c.value, 1e-3, "end at −jωn");
       expectRelativeClose(Number(m![3]) / (model.x(1) - model.x(0)), c.value, 1e-3, "radius");
-      expect(c.label).toMatch(/^ωn /);
+      expect(["", `ωn ${c.label.slice(3)}`]).toContain(c.label);
     }
+    expect(circles.filter((c) => c.label !== "").length).toBeGreaterThanOrEqual(2);
+  });
+
+  it("keeps ωn labels inside the frame, clear of every ζ label, on the half opposite them", () => {
+    checkAllLabelsApart(model);
+    for (const c of model.guides.filter((g) => g.kind === "wn" && g.label !== "")) expect(model.y.invert(c.labelBox!.y)).toBeLessThan(0);
   });
 
   it("marks zeros separately from poles", () => {
@@ -83,6 +83,91 @@ describe("continuous-time pole-zero map", () => {
   it("skips non-finite poles instead of drawing them at NaN", () => {
     const m = poleZeroModel({ series: [{ name: "A", poles: [{ re: NaN, im: 0 }, { re: -1, im: 0 }] }], width: 300, height: 300, margins });
     expect(m.series[0]!.poles).toHaveLength(1);
+  });
+});
+
+/** Plot area of a model as a box. */
+const frameOf = (m: PoleZeroModel): Box => ({ x: m.plot.left, y: m.plot.top, width: m.plot.width, height: m.plot.height });
+
+/** Kept ζ labels: inside the frame, touching its inset edge (outer end of the ray), centred on the ray, apart. */
+function checkZetaLabels(m: PoleZeroModel) {
+  const frame = frameOf(m);
+  const kept = m.guides.filter((g) => g.kind === "zeta" && g.label !== "");
+  expect(kept.length).toBeGreaterThanOrEqual(3);
+  expect(kept.map((g) => g.value)).toContain(0.9);
+  const ox = m.x(0), oy = m.y(0);
+  for (const g of kept) {
+    const b = g.labelBox!;
+    expect(boxInside(b, frame), `ζ ${g.value} inside`).toBe(true);
+    // Outer end: the box sits 2 units from the left or top edge of the frame.
+    const fromEdge = Math.min(b.x - frame.x, b.y - frame.y);
+    expectAtMost(Math.abs(fromEdge - 2), 0.01, `ζ ${g.value} box against the frame edge`);
+    // The box centre lies on the ray: its damping ratio −Re/|s| is the label's ζ.
+    const re = m.x.invert(b.x + b.width / 2), im = m.y.invert(b.y + b.height / 2);
+    expectRelativeClose(-re / Math.hypot(re, im), g.value, 1e-6, `ζ ${g.value} label on its ray`);
+    // And far from the origin, where the rays meet.
+    expect(Math.hypot(b.x + b.width / 2 - ox, b.y + b.height / 2 - oy)).toBeGreaterThan(0.5 * Math.min(ox - frame.x, oy - frame.y));
+  }
+  for (let i = 0; i < kept.length; i++) for (let j = i + 1; j < kept.length; j++) {
+    expect(boxesOverlap(kept[i]!.labelBox!, kept[j]!.labelBox!, LABEL_GAP), `ζ ${kept[i]!.value} vs ζ ${kept[j]!.value}`).toBe(false);
+  }
+}
+
+/** Every drawn guide label is inside the frame, clear of every pole and zero glyph, and no two overlap. */
+function checkAllLabelsApart(m: PoleZeroModel) {
+  const frame = frameOf(m);
+  const labelled = m.guides.filter((g) => g.label !== "");
+  const glyphs = m.series.flatMap((s) => [...s.poles, ...s.zeros]).map((p) => glyphBox(p.x, p.y));
+  for (const g of labelled) {
+    expect(boxInside(g.labelBox!, frame), `${g.label} inside`).toBe(true);
+    for (const b of glyphs) expect(boxesOverlap(g.labelBox!, b), `${g.label} over a pole or zero`).toBe(false);
+  }
+  for (let i = 0; i < labelled.length; i++) for (let j = i + 1; j < labelled.length; j++) {
+    expect(boxesOverlap(labelled[i]!.labelBox!, labelled[j]!.labelBox!), `${labelled[i]!.label} vs ${labelled[j]!.label}`).toBe(false);
+  }
+}
+
+describe("pole-zero guide labels", () => {
+  it("finds the last centre on a ray where a box still fits inside the frame", () => {
+    const frame = { x: 0, y: 0, width: 100, height: 100 };
+    // Ray going left from (80, 50): the 20 × 10 box centre stops 2 + 10 from the left edge.
+    expect(rayEndLabelCentre(80, 50, -1, 0, 20, 10, frame)).toEqual({ x: 12, y: 50 });
+    // Going up-left at 45°: the wide box meets the left inset (10 + 2) before the top one (5 + 2).
+    const c = rayEndLabelCentre(80, 80, -Math.SQRT1_2, -Math.SQRT1_2, 20, 10, frame)!;
+    expectAtMost(Math.abs(c.x - 12), 1e-9, "left inset");
+    expectAtMost(Math.abs(c.y - 12), 1e-9, "on the diagonal");
+    // Steeper (mostly up): the top inset is reached first.
+    const up = rayEndLabelCentre(80, 90, -0.6, -0.8, 20, 10, frame)!;
+    expectAtMost(Math.abs(up.y - 7), 1e-9, "top inset");
+    // A ray that leaves the frame without ever holding the box.
+    expect(rayEndLabelCentre(150, 50, 1, 0, 20, 10, frame)).toBeNull();
+  });
+
+  it("keeps labels apart on the sheet's map (a pair near the origin, two plant poles)", () => {
+    const m = poleZeroModel({
+      series: [
+        { name: "closed loop", poles: [{ re: -0.08, im: 0.06 }, { re: -0.08, im: -0.06 }] },
+        { name: "plant", poles: [{ re: -0.05, im: 0 }, { re: -0.03, im: 0 }] },
+      ],
+      width: 640, height: 400, margins: { top: 50, right: 16, bottom: 46, left: 58 },
+    });
+    checkZetaLabels(m);
+    checkAllLabelsApart(m);
+  });
+
+  it("drops crowded ζ labels on a small map but never overlaps", () => {
+    const m = poleZeroModel({ series: [{ name: "A", poles: [{ re: -0.2, im: 5 }, { re: -0.2, im: -5 }] }], width: 220, height: 260, margins });
+    const zeta = m.guides.filter((g) => g.kind === "zeta");
+    expect(zeta.some((g) => g.label === "")).toBe(true);
+    checkAllLabelsApart(m);
+  });
+
+  it("labels the lower half when only the lower half plane is in view", () => {
+    const m = poleZeroModel({ series: [{ name: "A", poles: [{ re: -1, im: 0 }] }], width: 400, height: 300, margins, view: { x: [-3, 1], y: [-3, -0.5] } });
+    const kept = m.guides.filter((g) => g.kind === "zeta" && g.label !== "");
+    expect(kept.length).toBeGreaterThan(0);
+    for (const g of kept) expect(m.y.invert(g.labelBox!.y + g.labelBox!.height / 2)).toBeLessThan(0);
+    checkAllLabelsApart(m);
   });
 });
 
@@ -115,6 +200,13 @@ describe("sampled-time pole-zero map", () => {
   it("labels every other constant-ζ curve (0.1, 0.3, …, 0.9) so labels near z = 1 do not overlap", () => {
     const labelled = model.guides.filter((g) => g.kind === "zeta" && g.label !== "").map((g) => g.value);
     expect(labelled).toEqual([0.1, 0.3, 0.5, 0.7, 0.9]);
+  });
+
+  it("keeps every guide label inside the frame, off the poles, and apart from the others", () => {
+    checkAllLabelsApart(model);
+    expect(model.guides.filter((g) => g.kind === "wn" && g.label !== "").length).toBeGreaterThanOrEqual(5);
+    const crowded = poleZeroModel({ series: [{ name: "A", poles: [{ re: 0.96, im: 0.04 }, { re: 0.96, im: -0.04 }, { re: -0.95, im: 0 }] }], sampleTime: 1, width: 640, height: 300, margins });
+    checkAllLabelsApart(crowded);
   });
 
   it("draws constant-ωn curves for ωn·T = kπ/10, each ending on the unit circle at angle ωn·T", () => {
