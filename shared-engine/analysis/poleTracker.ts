@@ -19,6 +19,10 @@ export interface TraceOptions {
   minSteps: number;
   /** Cap on evaluations of the family (accepted and rejected steps together). */
   maxEvaluations: number;
+  /** Checked before every evaluation; returning true stops with kind "cancelled". Default: never. */
+  isCancelled?: () => boolean;
+  /** Called after every accepted step with the fraction (s − s0)/(s1 − s0) traced, in [0, 1]. */
+  onProgress?: (fraction: number) => void;
 }
 
 export interface Trace {
@@ -131,7 +135,8 @@ function hungarian(cost: Float64Array, n: number): Int32Array {
  *   where any assignment gives continuous branches).
  * Cost: one `polesAt` per trial step; typically 1–3 trials per accepted step.
  * Accuracy: each accepted point is an exact (backward stable) eigenvalue set of M(s).
- * Errors: "no-convergence" when maxEvaluations is reached (details: evaluations, parameter).
+ * Errors: "no-convergence" when maxEvaluations is reached (details: evaluations, parameter);
+ *   "cancelled" when the optional `isCancelled` returns true (checked before each evaluation).
  * Example: tracePoles(s => eigenvalues([[0, 1], [-s, -3]]), ...) traces the locus of
  *   s² + 3s + k = 0; check each branch point is a root to 1e-12.
  */
@@ -155,6 +160,9 @@ export function tracePoles(polesAt: (s: number) => Complex[], start: Complex[], 
     const step = Math.min(h, s1 - s);
     const sNew = s1 - s - step <= minStep ? s1 : s + step;
     const actual = sNew - s;
+    if (options.isCancelled?.()) {
+      throw new EngineError("cancelled", `pole tracing was cancelled at ${s} of [${s0}, ${s1}] after ${evaluations} evaluations`, { evaluations, parameter: s });
+    }
     if (++evaluations > options.maxEvaluations) {
       throw new EngineError("no-convergence", `pole tracing did not reach the end of the parameter range within ${options.maxEvaluations} evaluations (stopped at ${s} of [${s0}, ${s1}])`, {
         evaluations,
@@ -189,6 +197,7 @@ export function tracePoles(polesAt: (s: number) => Complex[], start: Complex[], 
     previousStep = actual;
     current = matched;
     s = sNew;
+    options.onProgress?.(Math.min(1, (s - s0) / span));
     h = worst < 0.25 ? Math.min(2 * actual, maxStep) : actual;
   }
   return { params, branches, forcedSteps, evaluations };

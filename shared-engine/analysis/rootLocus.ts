@@ -34,6 +34,10 @@ export interface RootLocusOptions {
   maxGain?: number;
   /** Least number of gains (points per branch); default 200. */
   pointsPerBranch?: number;
+  /** Checked between eigenvalue evaluations; returning true stops with kind "cancelled". */
+  isCancelled?: () => boolean;
+  /** Fraction done in [0, 1], non-decreasing: tracing up to 0.8, then break points and crossings. */
+  onProgress?: (fraction: number) => void;
 }
 
 const MAX_CROSSING_BISECTIONS = 200;
@@ -62,7 +66,7 @@ const MAX_GAIN_DECADES = 40;
  *   very large k the poles near zeros lose accuracy in proportion to k‖bc‖. Crossing gains are
  *   bisected to 1e-13 relative; break points to 1e-14·scale.
  * Errors: "invalid-argument" (not SISO, n = 0, L ≡ 0, bad options), "no-convergence" (tracing
- *   or eigenvalue iteration caps).
+ *   or eigenvalue iteration caps), "cancelled" (the optional `isCancelled` returned true).
  * Example: rootLocus(k/(s(s+1)(s+2))).crossings → ±j√2 at k = 6; check |k − 6| < 1e-8.
  */
 export function rootLocus(L: StateSpace, options: RootLocusOptions = {}): RootLocus {
@@ -120,19 +124,34 @@ export function rootLocus(L: StateSpace, options: RootLocusOptions = {}): RootLo
   const kLow = Math.min(1e-9 * k0, 1e-6 * maxGain);
   const atLog = (s: number): Complex[] => closedLoop(sign * Math.exp(s));
   const start = matchPoles(poles, atLog(Math.log(kLow)));
-  const trace = tracePoles(atLog, start, Math.log(kLow), Math.log(maxGain), { ...DEFAULT_TRACE_OPTIONS, scale });
+  const onProgress = options.onProgress ?? ((): void => undefined);
+  const isCancelled = options.isCancelled;
+  onProgress(0);
+  const trace = tracePoles(atLog, start, Math.log(kLow), Math.log(maxGain), {
+    ...DEFAULT_TRACE_OPTIONS,
+    scale,
+    ...(isCancelled ? { isCancelled } : {}),
+    onProgress: (f) => onProgress(0.8 * f),
+  });
   if (trace.forcedSteps > 0) notes.push(`${trace.forcedSteps} step(s) taken at the minimum step where poles meet (break points)`);
   let gains = [0, ...trace.params.map((s) => sign * Math.exp(s))];
   let branches = poles.map((p, i) => [p, ...trace.branches[i]!]);
   gains[gains.length - 1] = sign * maxGain;
   ({ gains, branches } = densify(gains, branches, points, closedLoop));
+  if (isCancelled?.()) throw new EngineError("cancelled", "root locus cancelled after tracing the branches", {});
+  onProgress(0.85);
+  const breakPoints = findBreakPoints(L, poles, zeros, scale, sign);
+  if (isCancelled?.()) throw new EngineError("cancelled", "root locus cancelled after the break points", {});
+  onProgress(0.9);
+  const crossings = findCrossings(gains, branches, closedLoop, sampled);
+  onProgress(1);
 
   return {
     gains,
     branches,
     asymptotes,
-    breakPoints: findBreakPoints(L, poles, zeros, scale, sign),
-    crossings: findCrossings(gains, branches, closedLoop, sampled),
+    breakPoints,
+    crossings,
     openLoopPoles: poles,
     openLoopZeros: zeros,
     negativeGain,

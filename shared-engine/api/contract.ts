@@ -210,4 +210,6 @@ export const IPC_CHANNELS = {
   request: "loopwright:engine-request",
   cancel: "loopwright:engine-cancel",
   progress: "loopwright:engine-progress",
+  /** Desktop only: print the design sheet to a PDF file the user picks (main/printIpc.ts). */
+  printSheet: "loopwright:print-sheet",
 } as const;

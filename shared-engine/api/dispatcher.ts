@@ -9,10 +9,13 @@ import { ENGINE_VERSION } from "../version";
 import { evaluateProject, evaluateVariant, loadProjectText, loadProjectValue } from "../project";
 import { ENGINE_METHODS, type EngineMethod, type EngineMethods, isEngineMethod } from "./contract";
 import { requireMatrixParam, requireObjectParams } from "./params";
-import { requireFiniteResult, type RequestContext } from "./handlerSupport";
+import { requireFiniteResult, withPositiveZeros, type RequestContext } from "./handlerSupport";
 import { modelHandlers } from "./handlers/modelHandlers";
 import { analysisHandlers } from "./handlers/analysisHandlers";
 import { designHandlers } from "./handlers/designHandlers";
+import { servoDesignHandlers } from "./handlers/servoDesignHandlers";
+import { locusHandlers } from "./handlers/locusHandlers";
+import { nonlinearHandlers } from "./handlers/nonlinearHandlers";
 
 export type { RequestContext } from "./handlerSupport";
 
@@ -59,10 +62,20 @@ const handlers: { [M in EngineMethod]: Handler<M> } = {
   ...modelHandlers,
   ...analysisHandlers,
   ...designHandlers,
+  ...servoDesignHandlers,
+  ...locusHandlers,
+  ...nonlinearHandlers,
 };
 
 /** Methods whose results are checked for NaN/Infinity before they cross the bridge. */
-const FINITE_CHECKED: ReadonlySet<string> = new Set([...Object.keys(modelHandlers), ...Object.keys(analysisHandlers), ...Object.keys(designHandlers)]);
+const FINITE_CHECKED: ReadonlySet<string> = new Set([
+  ...Object.keys(modelHandlers),
+  ...Object.keys(analysisHandlers),
+  ...Object.keys(designHandlers),
+  ...Object.keys(servoDesignHandlers),
+  ...Object.keys(locusHandlers),
+  ...Object.keys(nonlinearHandlers),
+]);
 
 export const NO_CONTEXT: RequestContext = { isCancelled: () => false, reportProgress: () => undefined };
 
@@ -74,5 +87,5 @@ export async function dispatch(method: unknown, params: unknown, context: Reques
   }
   const handler = handlers[method] as Handler<EngineMethod>;
   const result = await handler(params, context);
-  return FINITE_CHECKED.has(method) ? requireFiniteResult(result, method) : result;
+  return FINITE_CHECKED.has(method) ? withPositiveZeros(requireFiniteResult(result, method)) : result;
 }

@@ -38,6 +38,22 @@ export interface LoopwrightPreloadApi {
   ): Promise<Envelope<EngineResult<M>>>;
   /** Cancels the request with this id, if it is still in flight; otherwise does nothing. */
   cancel(requestId: number): void;
+  /**
+   * Desktop app only (absent in browser mode): prints the sheet at `route`
+   * ("#/sheet/<projectId>/<variantId>") to a PDF file the user picks in a save dialog. Never
+   * rejects: `{ ok: true, result: { savedTo } | { cancelled: true } }` or `{ ok: false, error }`.
+   */
+  printSheet?(route: string, pageSize: SheetPaperSize): Promise<Envelope<PrintSheetResult>>;
+}
+
+/** Paper sizes the desktop print accepts (Electron's page-size names). */
+export type SheetPaperSize = "A4" | "Letter";
+/** Where the printed sheet went: a file path, or nowhere because the user cancelled the dialog. */
+export type PrintSheetResult = { savedTo: string } | { cancelled: true };
+/** Argument of `ipcRenderer.invoke(IPC_CHANNELS.printSheet, ...)`. */
+export interface IpcPrintSheetPayload {
+  route: string;
+  pageSize: SheetPaperSize;
 }
 
 // ---- What travels on IPC_CHANNELS (preload ⇄ main); not visible to the page ---------------

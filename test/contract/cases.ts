@@ -88,9 +88,36 @@ export const CONTRACT_CASES: readonly ContractCase[] = [
   { name: "a model whose B has the wrong rows", method: "analysis.structure", params: { model: { A: [[0, 1], [0, 0]], B: [[1]], C: [[1, 0]] } }, expected: { ok: false, kind: "shape-mismatch" } },
   { name: "a Riccati request without its kind", method: "design.riccati", params: { A: [[0]], B: [[1]], Q: [[1]], R: [[1]] }, expected: { ok: false, kind: "invalid-argument" } },
   { name: "an LQR sweep with no weights", method: "design.lqrSweep", params: { A: [[1]], B: [[1]], Q: [[1]], R: [[1]], rhoValues: [] }, expected: { ok: false, kind: "empty" } },
+  // Nonlinear plants, servo design and the JSON parameter loci (answers checked in
+  // test/app/api/nonlinearRequests.test.ts and servoAndLocusRequests.test.ts).
+  { name: "check equations with a syntax error (a result, not an error)", method: "nonlinear.check", params: { equations: [{ field: "f", text: "a + * b" }], names: ["a", "b"] }, expected: { ok: true } },
+  { name: "operating point of a scalar lag", method: "nonlinear.operatingPoint", params: { plant: lagPlant(), request: { unknowns: ["x"], inputs: { u: 0.05 } } }, expected: { ok: true } },
+  { name: "linearize a scalar lag", method: "nonlinear.linearize", params: { plant: lagPlant(), request: { unknowns: ["u"], states: { x: 0.02 } } }, expected: { ok: true } },
+  { name: "simulate a saturating scalar lag", method: "nonlinear.simulate", params: { plant: lagPlant(), request: { unknowns: ["x"], inputs: { u: 0 } }, K: [[10]], scenario: { initialOffset: { x: 1 } }, times: [0, 0.5, 1] }, expected: { ok: true } },
+  { name: "robustness sweep of a scalar lag", method: "nonlinear.robustness", params: { plant: lagPlant(), request: { unknowns: ["x"], inputs: { u: 0 } }, K: [[1]], parameters: [{ name: "k", percent: 20 }], sampling: { kind: "random", samples: 3, seed: 7 } }, expected: { ok: true } },
+  { name: "a plant equation that does not parse", method: "nonlinear.linearize", params: { plant: { ...lagPlant(), stateEquations: { x: "-k*x +" } }, request: { unknowns: ["x"] } }, expected: { ok: false, kind: "parse-error" } },
+  { name: "servo design by pole placement", method: "design.integral", params: { model: { A: [[-1]], B: [[1]], C: [[1]] }, outputs: [0], method: "poles", poles: [-2], integratorPoles: [-3] }, expected: { ok: true } },
+  { name: "reference feedforward", method: "design.feedforward", params: { model: { A: [[-1]], B: [[1]], C: [[2]] }, K: [[3]] }, expected: { ok: true } },
+  { name: "observer-based compensator", method: "design.compensator", params: { model: { A: [[0]], B: [[1]], C: [[1]] }, K: [[2]], L: [[3]], form: "predictor" }, expected: { ok: true } },
+  { name: "reduced-order observer", method: "design.reducedObserver", params: { A: [[0, 1], [-2, -3]], B: [[0], [1]], C: [[1, 0]], poles: [-8] }, expected: { ok: true } },
+  { name: "LQR weight locus", method: "analysis.lqrWeightLocus", params: { A: [[1]], B: [[1]], Q: [[1]], R0: [[1]], rhoRange: [0.1, 10], points: 5 }, expected: { ok: true } },
+  { name: "observer speed locus", method: "analysis.observerSpeedLocus", params: { A: [[0, 1], [-2, -3]], C: [[1, 0]], poles: [-10, -11], factorRange: [0.5, 2], points: 5 }, expected: { ok: true } },
+  { name: "a servo design without its method", method: "design.integral", params: { model: { A: [[-1]], B: [[1]], C: [[1]] }, outputs: [0] }, expected: { ok: false, kind: "invalid-argument" } },
 ];
 
 /** Sorts eigenvalues by real part, then imaginary part, for comparison with expectedEigenvalues. */
 export function sortedEigenvalues(values: readonly ComplexNumber[]): ComplexNumber[] {
   return [...values].sort((a, b) => a.re - b.re || a.im - b.im);
+}
+
+/** ẋ = −k·x + u + w, |u| ≤ 0.1, y = x: a scalar lag typed as equations (for the nonlinear cases; a hoisted declaration so the list above can use it). */
+function lagPlant() {
+  return {
+    states: [{ name: "x" }],
+    inputs: [{ name: "u", min: -0.1, max: 0.1 }],
+    disturbances: [{ name: "w" }],
+    parameters: [{ name: "k", value: 1 }],
+    stateEquations: { x: "-k*x + u + w" },
+    outputs: [{ name: "y", equation: "x" }],
+  };
 }

@@ -157,3 +157,32 @@ export function quarterIntegerMatrix(entries: number[], rows: number, cols: numb
   for (let i = 0; i < rows; i++) out.push(entries.slice(i * cols, (i + 1) * cols).map((v) => v / 4));
   return out;
 }
+
+/**
+ * Deep equality of plain JSON data where numbers may differ by `relTol` relative (absolute below
+ * `absFloor`). Used where the same engine runs on two JavaScript engines: V8 in Node and V8 in
+ * Chromium are different versions, and their Math.* functions may differ in the last bit.
+ */
+export function expectDeepClose(actual: unknown, expected: unknown, relTol = 1e-12, absFloor = 1e-300, path = "$"): void {
+  if (typeof expected === "number") {
+    if (typeof actual !== "number") expect.fail(`${path}: expected a number, got ${JSON.stringify(actual)}`);
+    const err = Math.abs(actual - expected);
+    if (!(err <= Math.max(relTol * Math.abs(expected), absFloor)) && actual !== expected) {
+      expect.fail(`${path}: ${actual} vs ${expected} (relative difference ${(err / Math.abs(expected)).toExponential(2)} > ${relTol})`);
+    }
+    return;
+  }
+  if (Array.isArray(expected)) {
+    if (!Array.isArray(actual)) expect.fail(`${path}: expected a list, got ${JSON.stringify(actual)}`);
+    expect(actual.length, `${path} length`).toBe(expected.length);
+    expected.forEach((e, i) => expectDeepClose(actual[i], e, relTol, absFloor, `${path}[${i}]`));
+    return;
+  }
+  if (expected !== null && typeof expected === "object") {
+    if (actual === null || typeof actual !== "object") expect.fail(`${path}: expected an object, got ${JSON.stringify(actual)}`);
+    expect(Object.keys(actual as object).sort(), `${path} keys`).toEqual(Object.keys(expected).sort());
+    for (const [k, e] of Object.entries(expected)) expectDeepClose((actual as Record<string, unknown>)[k], e, relTol, absFloor, `${path}.${k}`);
+    return;
+  }
+  expect(actual, path).toEqual(expected);
+}

@@ -34,7 +34,7 @@ import type {
   StructureResult,
   ZerosResult,
 } from "../contractTypes";
-import { diagnostics, modelToJson, throwIfCancelled, type RequestHandler } from "../handlerSupport";
+import { diagnostics, modelToJson, progressForwarder, throwIfCancelled, type RequestHandler } from "../handlerSupport";
 import {
   ANALYSIS_LIMITS,
   optionalBooleanParam,
@@ -224,14 +224,17 @@ export const analysisHandlers = {
     const negativeGain = optionalBooleanParam(p, "negativeGain");
     const maxGain = optionalNumberParam(p, "maxGain", { positive: true });
     const pointsPerBranch = optionalNumberParam(p, "pointsPerBranch", { integer: true, min: 2, max: ANALYSIS_LIMITS.maxLocusPoints });
-    // The engine traces the locus in one call; progress is reported at its stage boundaries and
-    // cancellation is honoured before the (expensive) tracing and before the result is built.
+    // Progress comes from the tracing itself (fraction of the log-gain range, then break points
+    // and crossings); cancellation is checked before every eigenvalue evaluation.
     context.reportProgress({ fraction: 0, label: "tracing root-locus branches" });
     throwIfCancelled(context, "analysis.rootLocus", "before tracing");
+    const onProgress = progressForwarder(context, "tracing root-locus branches");
     const r = rootLocus(loop, {
       ...(negativeGain !== undefined ? { negativeGain } : {}),
       ...(maxGain !== undefined ? { maxGain } : {}),
       ...(pointsPerBranch !== undefined ? { pointsPerBranch } : {}),
+      isCancelled: () => context.isCancelled(),
+      onProgress,
     });
     throwIfCancelled(context, "analysis.rootLocus", "after tracing");
     context.reportProgress({ fraction: 1, label: "root locus traced" });

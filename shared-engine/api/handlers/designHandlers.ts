@@ -44,15 +44,15 @@ import {
 } from "../params";
 
 /** Meaning of RiccatiSolution.conditionIndicator, echoed with every Riccati-based result. */
-const RICCATI_CONDITION = "reciprocal 1-norm condition of U11 in X = U21·U11⁻¹ (near 1: well conditioned; near ε: near the stabilizability/detectability boundary)";
+export const RICCATI_CONDITION = "reciprocal 1-norm condition of U11 in X = U21·U11⁻¹ (near 1: well conditioned; near ε: near the stabilizability/detectability boundary)";
 
-function placementOptions(p: Record<string, unknown>): PlacementOptions {
+export function placementOptions(p: Record<string, unknown>): PlacementOptions {
   const maxIterations = optionalNumberParam(p, "maxIterations", { integer: true, min: 1, max: 10_000 });
   const tolerance = optionalNumberParam(p, "tolerance", { positive: true, max: 1 });
   return { ...(maxIterations !== undefined ? { maxIterations } : {}), ...(tolerance !== undefined ? { tolerance } : {}) };
 }
 
-function placementJson(r: { requestedPoles: PlacementResultJson["requestedPoles"]; achievedPoles: PlacementResultJson["achievedPoles"]; maxPoleError: number; gainNorm: number; gainNorm2: number; eigenvectorCondition: number; method: PlacementResultJson["method"]; iterations?: number; warnings: string[] }): PlacementResultJson {
+export function placementJson(r: { requestedPoles: PlacementResultJson["requestedPoles"]; achievedPoles: PlacementResultJson["achievedPoles"]; maxPoleError: number; gainNorm: number; gainNorm2: number; eigenvectorCondition: number; method: PlacementResultJson["method"]; iterations?: number; warnings: string[] }): PlacementResultJson {
   return {
     requestedPoles: r.requestedPoles,
     achievedPoles: r.achievedPoles,
