@@ -298,11 +298,18 @@ export function simulateClosedLoop(request: ClosedLoopSimulationRequest): Closed
     wAt(t, wNow, t);
     setEnv(state, held, wNow);
     plant.outputValues(env, yNow);
+    const linear = linearRun.signals(x0, u0, y0);
+    // An unstable linearized loop can outgrow floating point before the nonlinear run stops:
+    // end the record at the last sample where both are finite, and say why (never a NaN).
+    for (const list of [linear.states, linear.inputs, linear.outputs]) {
+      if (list.some((v) => !Number.isFinite(v))) {
+        throw new EngineError("non-finite", `the linear prediction left the floating-point range at t = ${t} s (the linearized loop is unstable)`, { time: t });
+      }
+    }
     out.time.push(t);
     out.states.push(Array.from(state.subarray(0, n)));
     out.inputs.push(Array.from(held));
     out.outputs.push(Array.from(yNow));
-    const linear = linearRun.signals(x0, u0, y0);
     out.linear.states.push(linear.states);
     out.linear.inputs.push(linear.inputs);
     out.linear.outputs.push(linear.outputs);

@@ -132,3 +132,25 @@ describe("simulateClosedLoop", () => {
     expect(() => simulateClosedLoop({ plant: linearPlant, operatingPoint: linearOp, K: [[3, 1]], times: [0, 2, 1] })).toThrow(/strictly increasing/);
   });
 });
+
+describe("an unstable linearized loop", () => {
+  it("stops the record at the last finite sample of the linear prediction instead of returning NaN", () => {
+    // Regression found through the bridge: inverted pendulum with K = 0 (no feedback), long
+    // horizon; the exact linear prediction grows like e^{√(g/l) t} and overflows near t ≈ 167 s.
+    const plant = compileNonlinearPlant({
+      states: [{ name: "theta" }, { name: "omega" }],
+      inputs: [{ name: "torque" }],
+      disturbances: [],
+      parameters: [{ name: "g", value: 9.81 }, { name: "l", value: 1 }],
+      stateEquations: { theta: "omega", omega: "g/l*sin(theta) + torque" },
+      outputs: [{ name: "angle", equation: "theta" }],
+    });
+    const op = solveOperatingPoint(plant, { unknowns: ["omega", "torque"], states: { theta: 0 } });
+    const times = Array.from({ length: 401 }, (_, k) => k);
+    const sim = simulateClosedLoop({ plant, operatingPoint: op, K: [[0, 0]], scenario: { initialOffset: { theta: 1e-9 } }, times });
+    expect(sim.stoppedEarly).not.toBeNull();
+    const all = [...sim.outputs.flat(), ...sim.linear.outputs.flat(), ...sim.linear.states.flat()];
+    expect(all.every((v) => Number.isFinite(v))).toBe(true);
+    expect(sim.time.length).toBe(sim.linear.outputs.length);
+  });
+});
