@@ -5,7 +5,7 @@
  */
 import { IPC_CHANNELS, type Envelope, type Progress } from "../shared-engine/api/contract";
 import type { ErrorPayload } from "../shared-engine/errors";
-import type { IpcProgressPayload, LoopwrightPreloadApi, PreloadRequestOptions } from "../shared-engine/api/preloadApi";
+import type { IpcPrintSheetPayload, IpcProgressPayload, LoopwrightPreloadApi, PreloadRequestOptions, PrintSheetResult, SheetPaperSize } from "../shared-engine/api/preloadApi";
 
 /** The members of Electron's `ipcRenderer` used here. */
 export interface IpcRendererLike {
@@ -65,6 +65,22 @@ export function createPreloadApi(ipcRenderer: IpcRendererLike): LoopwrightPreloa
     cancel(requestId: number): void {
       if (typeof requestId !== "number" || !inFlight.has(requestId)) return;
       ipcRenderer.send(IPC_CHANNELS.cancel, { requestId });
+    },
+    async printSheet(route: string, pageSize: SheetPaperSize): Promise<Envelope<PrintSheetResult>> {
+      // Main validates again; this early check only spares a round trip for a wrong type.
+      if (typeof route !== "string" || (pageSize !== "A4" && pageSize !== "Letter")) {
+        return failure("invalid-argument", 'printSheet needs a route string and pageSize "A4" or "Letter"', { field: typeof route !== "string" ? "route" : "pageSize" });
+      }
+      const payload: IpcPrintSheetPayload = { route, pageSize };
+      try {
+        const envelope = await ipcRenderer.invoke(IPC_CHANNELS.printSheet, payload);
+        return isEnvelope(envelope)
+          ? (envelope as Envelope<PrintSheetResult>)
+          : failure("internal", "The main process answered the print request with something that is not an envelope", {});
+      } catch (error) {
+        const message = error instanceof Error ? error.message : String(error);
+        return failure("internal", `The print request could not be sent: ${message}`, { route });
+      }
     },
   };
   return Object.freeze(api);

@@ -3,8 +3,8 @@
  * behaviour lives in startApp.ts and the modules it calls, which are unit-tested.
  * Layout at run time: dist/main/{main.js, preload.cjs, engineWorker.js}, dist/renderer/.
  */
-import { app, BrowserWindow, ipcMain, protocol, session } from "electron";
-import { readFile } from "node:fs/promises";
+import { app, BrowserWindow, dialog, ipcMain, protocol, session } from "electron";
+import { readFile, writeFile } from "node:fs/promises";
 import path from "node:path";
 import { fileURLToPath } from "node:url";
 import { Worker } from "node:worker_threads";
@@ -27,4 +27,13 @@ startApp({
   },
   createWorker: () => new Worker(path.join(here, "engineWorker.js")),
   log: (line) => console.warn(`[loopwright] ${line}`),
+  printing: {
+    BrowserWindow,
+    // Modal to the window the user printed from, when it still has focus.
+    showSaveDialog: (options) => {
+      const parent = BrowserWindow.getFocusedWindow();
+      return parent ? dialog.showSaveDialog(parent, options) : dialog.showSaveDialog(options);
+    },
+    writeFile: (filePath, bytes) => writeFile(filePath, bytes),
+  },
 });

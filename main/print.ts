@@ -4,12 +4,18 @@
  * numbers as page-margin boxes), so Chromium's own header and footer are switched off and CSS
  * page size wins (`preferCSSPageSize`).
  *
- * How the app will call it (no IPC channel this round): main opens the sheet in a hidden
- * BrowserWindow created with `mainWindowOptions` (same hardening), loads
- * `app://loopwright/index.html#/sheet/<project>/<variant>`, waits for `did-finish-load`, calls
- * `printSheetToPdf(window.webContents, { pageSize })`, writes the bytes where the user chose in a
- * save dialog, and closes the window. A future IPC channel "loopwright:print-sheet" will take
- * only { projectId, variantId, pageSize } from the renderer (validated), never a path or HTML.
+ * Who calls it: main/printIpc.ts, the handler of IPC_CHANNELS.printSheet
+ * ("loopwright:print-sheet"). The renderer sends only `{ route: "#/sheet/<project>/<variant>",
+ * pageSize: "A4" | "Letter" }` (validated; never a path or HTML). Main opens the sheet in a
+ * hidden window built from `mainWindowOptions` (same hardening), loads
+ * `app://loopwright/index.html?sheet-print=<size>#/sheet/<project>/<variant>`, waits until the
+ * sheet view sets its "ready" title (or a timeout), calls `printSheetToPdf(window.webContents,
+ * { pageSize })`, writes the bytes where the user chose in a save dialog, and destroys the
+ * window in every path.
+ *
+ * The three ways a sheet is produced (DEVELOPERS.md, "Printing the design sheet"): the desktop
+ * app (this path), browser mode (the Print button opens the browser's print dialog), and the
+ * command line (`loopwright sheet`).
  */
 
 /** The slice of Electron's WebContents used here (injected so tests need no Electron). */
@@ -18,7 +24,8 @@ export interface PrintableContents {
     pageSize: "A4" | "Letter";
     printBackground: boolean;
     landscape: boolean;
-    margins: { marginType: "default" | "none" | "printableArea" | "custom"; top?: number; bottom?: number; left?: number; right?: number };
+    /** Inches (Electron 21+ takes numbers only; the older `marginType` is ignored). */
+    margins: { top: number; bottom: number; left: number; right: number };
     displayHeaderFooter: boolean;
     preferCSSPageSize: boolean;
   }): Promise<Uint8Array>;
@@ -33,8 +40,9 @@ export function sheetPdfOptions(pageSize: SheetPageSize): Parameters<PrintableCo
     pageSize: pageSize === "a4" ? "A4" : "Letter",
     printBackground: true,
     landscape: false,
-    // "none": the sheet's @page margins (which hold the running header) are the only margins.
-    margins: { marginType: "none" },
+    // Zero: the sheet's @page margins (which hold the running header) are the only margins.
+    // (`{ marginType: "none" }` is ignored by current Electron, which then adds 1 cm.)
+    margins: { top: 0, bottom: 0, left: 0, right: 0 },
     displayHeaderFooter: false,
     preferCSSPageSize: true,
   };

@@ -8,6 +8,7 @@ import { createAppProtocolHandler, installAppProtocol, registerAppSchemePrivileg
 import { registerEngineIpc, type IpcMainLike } from "./ipc";
 import { createEngineHost, type EngineHostEvent, type EngineWorkerFactory } from "./engineHost";
 import { createMainWindow, type MainWindowLike, type WindowElectron } from "./window";
+import { registerPrintSheetIpc, type PrintSheetDeps } from "./printIpc";
 
 export interface AppWindowLike extends MainWindowLike {
   isMinimized(): boolean;
@@ -33,6 +34,8 @@ export interface StartAppDeps<W extends AppWindowLike> {
   paths: { rendererRoot: string; preload: string; icon?: string };
   createWorker: EngineWorkerFactory;
   log?: (line: string) => void;
+  /** Print-to-PDF of the design sheet (IPC_CHANNELS.printSheet); the channel is absent without it. */
+  printing?: Pick<PrintSheetDeps, "BrowserWindow" | "showSaveDialog" | "writeFile" | "readyTimeoutMs">;
 }
 
 /** Starts the app. Returns false (and quits) when another instance already holds the lock. */
@@ -80,9 +83,13 @@ export function startApp<W extends AppWindowLike>(deps: StartAppDeps<W>): boolea
       },
     });
     const disposeIpc = registerEngineIpc(deps.ipcMain, host, isTrustedSender);
+    const disposePrint = deps.printing
+      ? registerPrintSheetIpc(deps.ipcMain, { ...deps.printing, preloadPath: deps.paths.preload, isTrustedSender })
+      : () => undefined;
     shutdown = () => {
       shutdown = null;
       disposeIpc();
+      disposePrint();
       void host.dispose();
     };
     openWindow();

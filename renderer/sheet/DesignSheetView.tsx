@@ -1,7 +1,10 @@
 /**
- * The "Design sheet" screen: pick a variant, read its sheet as it will print, print it
- * (window.print, with the sheet's own @page rules), and record a sign-off (role, name, date)
- * that stores the design fingerprint in the project document.
+ * The "Design sheet" screen: pick a variant, read its sheet as it will print, print it, and
+ * record a sign-off (role, name, date) that stores the design fingerprint in the project document.
+ * Print: a PDF through the desktop app's preload (`window.loopwright.printSheet`) when present,
+ * else the browser's print dialog (window.print, with the sheet's own @page rules); see
+ * sheetPrinting.ts. With `?sheet-print=A4|Letter` in the URL (the desktop app's hidden print
+ * window) only the sheet is rendered and its state is reported through document.title.
  *
  * Reached by the hash route "#/sheet/<projectId>[/<variantId>]" (see DesignSheetRoute).
  */
@@ -12,23 +15,62 @@ import { DesignSheet } from "./DesignSheet";
 import { createDesignSheetStore } from "./designSheetStore";
 import { SIGN_OFF_ROLES, type SignOffRole } from "./sheetModel";
 import { sheetCss } from "./sheetStyles";
+import { chooseSheetPrinter, describePrintOutcome, readSheetPrintMode, sheetStatusTitle, type SheetPrintHost, type SheetPrintOutcome } from "./sheetPrinting";
 
 export interface DesignSheetDeps {
   bridge: EngineBridge;
   documents: DocumentStore;
+  /** Replaces the print action (tests); by default chosen by `chooseSheetPrinter(window)`. */
   print?: () => void;
   today?: () => string;
+  /** Where print-only mode is read from; defaults to `window.location.search`. */
+  locationSearch?: string;
 }
 
 export function DesignSheetView({ deps, projectId, variantId, onClose }: { deps: DesignSheetDeps; projectId: string; variantId?: string; onClose?: () => void }) {
   const store = useMemo(() => createDesignSheetStore(deps), [deps]);
-  const state = useSyncExternalStore(store.subscribe, store.getState);
+  const state = useSyncExternalStore(store.subscribe, store.getState, store.getState);
   const today = deps.today ?? (() => new Date().toISOString().slice(0, 10));
   const [role, setRole] = useState<SignOffRole>("prepared");
   const [name, setName] = useState("");
   const [date, setDate] = useState(today);
-  useEffect(() => void store.load(projectId, variantId), [store, projectId, variantId]);
+  const printMode = useMemo(() => readSheetPrintMode(deps.locationSearch ?? window.location.search), [deps.locationSearch]);
+  const [printing, setPrinting] = useState(false);
+  const [printOutcome, setPrintOutcome] = useState<SheetPrintOutcome | null>(null);
+  useEffect(() => {
+    if (printMode) store.setPageSize(printMode.pageSize);
+    void store.load(projectId, variantId);
+  }, [store, projectId, variantId, printMode]);
   const { project, result, variantId: chosen } = state;
+  // Print-only mode: tell main (watching the title) once the sheet is committed to the DOM.
+  useEffect(() => {
+    if (!printMode) return;
+    const title = sheetStatusTitle(state.phase, state.phase === "failed" ? (state.error ?? "unknown error") : (project?.name ?? ""));
+    if (title) document.title = title;
+  }, [printMode, state.phase, state.error, project]);
+  const print = async (): Promise<void> => {
+    if (deps.print) return deps.print();
+    if (!chosen) return;
+    setPrinting(true);
+    setPrintOutcome(null);
+    const outcome = await chooseSheetPrinter(window as unknown as SheetPrintHost)(sheetRouteHash(projectId, chosen), state.pageSize);
+    setPrinting(false);
+    setPrintOutcome(outcome);
+  };
+  if (printMode) {
+    return (
+      <section className="lw-sheet-view">
+        {state.phase === "failed" && <p className="error-text" role="alert">{state.error}</p>}
+        {state.phase === "ready" && project && result && chosen && state.engineVersion && (
+          <>
+            <style>{`${sheetCss(state.pageSize, { project: project.name, variant: chosen, revision: String(state.revision), date: today() })}
+@media print { .top-bar, .status-line { display: none !important; } }`}</style>
+            <DesignSheet project={project} variantId={chosen} result={result} revision={String(state.revision)} date={today()} pageSize={state.pageSize} engineVersion={state.engineVersion} />
+          </>
+        )}
+      </section>
+    );
+  }
   return (
     <section className="panel lw-sheet-view" aria-labelledby="sheet-heading">
       <div className="panel-head lw-sheet-noprint">
@@ -45,7 +87,7 @@ export function DesignSheetView({ deps, projectId, variantId, onClose }: { deps:
           <option value="a4">A4</option>
           <option value="letter">US Letter</option>
         </select>
-        <button type="button" className="button-accent" disabled={state.phase !== "ready"} onClick={() => (deps.print ?? (() => window.print()))()}>Print</button>
+        <button type="button" className="button-accent" disabled={state.phase !== "ready" || printing} onClick={() => void print()}>{printing ? "Printing…" : "Print"}</button>
       </div>
       <form
         className="create-row lw-sheet-noprint"
@@ -66,6 +108,11 @@ export function DesignSheetView({ deps, projectId, variantId, onClose }: { deps:
         <button type="submit" className="button-accent" disabled={state.phase !== "ready" || state.busy}>Record sign-off</button>
       </form>
       <p className="notice-line lw-sheet-noprint" role="status" aria-live="polite">{state.notice ?? ""}</p>
+      {printOutcome && describePrintOutcome(printOutcome) && (
+        <p className={`${printOutcome.kind === "failed" ? "error-text" : "notice-line"} lw-sheet-noprint`} role={printOutcome.kind === "failed" ? "alert" : "status"}>
+          {describePrintOutcome(printOutcome)}
+        </p>
+      )}
       {state.phase === "failed" && <p className="error-text" role="alert">{state.error}</p>}
       {state.phase === "loading" && <p className="muted">Designing the variant…</p>}
       {state.phase === "ready" && project && result && chosen && state.engineVersion && (

@@ -19,9 +19,9 @@ function fakeIpcRenderer() {
 const tick = () => new Promise((resolve) => setTimeout(resolve, 0));
 
 describe("createPreloadApi", () => {
-  it("exposes only apiVersion, request and cancel, frozen", () => {
+  it("exposes only apiVersion, request, cancel and printSheet, frozen", () => {
     const api = createPreloadApi(fakeIpcRenderer().ipcRenderer);
-    expect(Object.keys(api).sort()).toEqual(["apiVersion", "cancel", "request"]);
+    expect(Object.keys(api).sort()).toEqual(["apiVersion", "cancel", "printSheet", "request"]);
     expect(api.apiVersion).toBe(1);
     expect(Object.isFrozen(api)).toBe(true);
   });
@@ -117,5 +117,30 @@ describe("createPreloadApi", () => {
     expect(() => fake.progress({ requestId: 1, progress: { fraction: 0.5, label: "x" } })).not.toThrow();
     fake.invokes[0]!.answer({ ok: true, result: 1 });
     expect(await pending).toEqual({ ok: true, result: 1 });
+  });
+
+  it("sends printSheet as one { route, pageSize } invoke on the print channel and resolves with main's envelope", async () => {
+    const fake = fakeIpcRenderer();
+    const api = createPreloadApi(fake.ipcRenderer);
+    const answer = api.printSheet!("#/sheet/p/v", "Letter");
+    expect(fake.invokes).toHaveLength(1);
+    expect(fake.invokes[0]!.channel).toBe(IPC_CHANNELS.printSheet);
+    expect(fake.invokes[0]!.args).toEqual([{ route: "#/sheet/p/v", pageSize: "Letter" }]);
+    fake.invokes[0]!.answer({ ok: true, result: { savedTo: "/tmp/s.pdf" } });
+    expect(await answer).toEqual({ ok: true, result: { savedTo: "/tmp/s.pdf" } });
+  });
+
+  it("resolves printSheet with an error envelope, never a rejection, for bad arguments, a failed invoke or a strange answer", async () => {
+    const fake = fakeIpcRenderer();
+    const api = createPreloadApi(fake.ipcRenderer);
+    expect(await api.printSheet!("#/sheet/p/v", "A3" as never)).toMatchObject({ ok: false, error: { kind: "invalid-argument", details: { field: "pageSize" } } });
+    expect(await api.printSheet!(42 as never, "A4")).toMatchObject({ ok: false, error: { kind: "invalid-argument", details: { field: "route" } } });
+    expect(fake.invokes).toHaveLength(0);
+    const failed = api.printSheet!("#/sheet/p/v", "A4");
+    const strange = api.printSheet!("#/sheet/p/v", "A4");
+    fake.invokes[0]!.fail(new Error("No handler registered for 'loopwright:print-sheet'"));
+    fake.invokes[1]!.answer(undefined);
+    expect(await failed).toMatchObject({ ok: false, error: { kind: "internal", message: expect.stringMatching(/could not be sent: No handler/) } });
+    expect(await strange).toMatchObject({ ok: false, error: { kind: "internal", message: expect.stringMatching(/not an envelope/) } });
   });
 });

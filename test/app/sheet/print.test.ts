@@ -21,7 +21,7 @@ describe("printSheetToPdf", () => {
     const bytes = await printSheetToPdf(contents, { pageSize: "a4" });
     expect(bytes).toBe(pdfBytes);
     expect(contents.calls).toEqual([
-      { pageSize: "A4", printBackground: true, landscape: false, margins: { marginType: "none" }, displayHeaderFooter: false, preferCSSPageSize: true },
+      { pageSize: "A4", printBackground: true, landscape: false, margins: { top: 0, bottom: 0, left: 0, right: 0 }, displayHeaderFooter: false, preferCSSPageSize: true },
     ]);
   });
 
