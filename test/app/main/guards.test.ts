@@ -1,6 +1,9 @@
 import { describe, expect, it } from "vitest";
-import { denyAllPermissions, hardenWebContents, installGuards, isTrustedSender, type GuardedWebContents, type GuardRefusal } from "../../../main/guards";
+import { denyAllPermissions, hardenWebContents, installGuards, isTrustedSender, type GuardedWebContents, type GuardRefusal, type GuardedSession } from "../../../main/guards";
 import { isAppOriginUrl } from "../../../main/appOrigin";
+
+type RequestHandler = Parameters<GuardedSession["setPermissionRequestHandler"]>[0];
+type CheckHandler = Parameters<GuardedSession["setPermissionCheckHandler"]>[0];
 
 type Listener = (event: { preventDefault(): void; url?: string }, url?: string) => void;
 
@@ -92,10 +95,10 @@ describe("installGuards", () => {
         created = listener;
       },
     };
-    const handlers: { request?: Function; check?: Function } = {};
+    const handlers: { request?: RequestHandler; check?: CheckHandler } = {};
     const session = {
-      setPermissionRequestHandler: (h: Function) => (handlers.request = h),
-      setPermissionCheckHandler: (h: Function) => (handlers.check = h),
+      setPermissionRequestHandler: (h: RequestHandler) => (handlers.request = h),
+      setPermissionCheckHandler: (h: CheckHandler) => (handlers.check = h),
     };
     installGuards(app, session);
     const { contents, fire } = fakeContents();
@@ -111,7 +114,7 @@ describe("installGuards", () => {
   });
 
   it("reports each refused permission to the refusal callback", () => {
-    const handlers: { request?: Function; check?: Function } = {};
+    const handlers: { request?: RequestHandler; check?: CheckHandler } = {};
     const refused: GuardRefusal[] = [];
     denyAllPermissions(
       { setPermissionRequestHandler: (h) => (handlers.request = h), setPermissionCheckHandler: (h) => (handlers.check = h) },
