@@ -3,3 +3,7 @@ export * from "./documentEdits";
 export * from "./designHelpers";
 export * from "./workspaceStore";
 export * from "./workspaceCommands";
+export * from "./longTask";
+export * from "./nonlinearEditor";
+export * from "./nonlinearTasks";
+export * from "./locusState";

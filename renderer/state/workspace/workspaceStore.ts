@@ -10,6 +10,9 @@
  *   newer edit aborts the previous request (AbortController) and its late result is discarded.
  *   Live edits (dragging a pole) are throttled instead: one request in flight, the newest
  *   position sent as soon as it returns, so the picture keeps moving while the hand moves.
+ *   A live edit asks for a preview ("project.previewVariant": gain, poles, step, Bode only) and
+ *   shows it over the last full result's plant report, without margins; the full evaluation runs
+ *   once the gesture settles (`settleLiveEdits`, or `settleDelayMs` after the last live edit).
  * - Text the user typed is never lost: a cell that does not parse keeps its raw text and an
  *   error message, and the document keeps its last valid value until the text parses.
  */
@@ -33,6 +36,12 @@ export interface EvaluationState {
   error: string | null;
   /** Milliseconds the shown result took, request to answer. */
   durationMs: number | null;
+  /**
+   * True while the shown result is a drag preview: gain, poles, step and Bode are current, the
+   * plant report is the last full result's, and margins and requirement checks are absent until
+   * the full evaluation that follows the gesture.
+   */
+  preview?: boolean;
   /** Results that arrived after a newer request was sent, and were dropped. */
   discarded: number;
   /** Requests sent so far (the sequence number of the newest). */
@@ -72,8 +81,10 @@ export interface WorkspaceStoreDeps {
   now?: () => number;
   /** The document to start from when the project was never saved (revision 0), e.g. the demo's. */
   initialDocument?: () => ProjectFile | null;
-  /** Called when a result is shown (the view marks frame times from here). */
-  onResult?: (result: VariantResult, durationMs: number) => void;
+  /** Called when a result is shown (the view marks frame times from here); `kind` says whether it is a drag preview. */
+  onResult?: (result: VariantResult, durationMs: number, kind: "preview" | "full") => void;
+  /** Quiet time after the last live edit before the full evaluation runs (ms). */
+  settleDelayMs?: number;
 }
 
 export interface EditOptions {
@@ -101,6 +112,8 @@ export interface WorkspaceStore {
   redo(): boolean;
   /** Sends the active variant now (also after a failure, to retry). */
   evaluateNow(): void;
+  /** A live gesture ended (pointer released): run the full evaluation now if a preview is shown or pending. */
+  settleLiveEdits(): void;
   cancelEvaluation(): void;
   /** Writes pending changes now (e.g. before leaving the workspace). */
   flushSave(): Promise<void>;
@@ -137,6 +150,7 @@ export function activeVariantOf(state: WorkspaceState): VariantSpec | null {
 
 export function createWorkspaceStore(deps: WorkspaceStoreDeps): WorkspaceStore {
   const evaluateDelay = deps.evaluateDelayMs ?? 120;
+  const settleDelay = deps.settleDelayMs ?? 300;
   const saveDelay = deps.saveDelayMs ?? 800;
   const now = deps.now ?? (() => (typeof performance !== "undefined" ? performance.now() : Date.now()));
   let state: WorkspaceState = {
@@ -160,6 +174,10 @@ export function createWorkspaceStore(deps: WorkspaceStoreDeps): WorkspaceStore {
   let saveTimer: ReturnType<typeof setTimeout> | null = null;
   let inFlight: { seq: number; controller: AbortController; live: boolean } | null = null;
   let liveDirty = false;
+  let settleTimer: ReturnType<typeof setTimeout> | null = null;
+  // The plant spec and result of the last full evaluation: a preview reuses its plant report,
+  // which is valid only while the plant spec is the very same object (edits replace, never mutate).
+  let lastFull: { variantId: string; plant: unknown; result: VariantResult } | null = null;
   let saving: Promise<void> | null = null;
   // True from just before our own save call until it settles: the store's change notification
   // for our own write may arrive synchronously, before `saving` is assigned.
@@ -180,8 +198,14 @@ export function createWorkspaceStore(deps: WorkspaceStoreDeps): WorkspaceStore {
     evaluateTimer = null;
   }
 
+  function clearSettleTimer(): void {
+    if (settleTimer !== null) clearTimeout(settleTimer);
+    settleTimer = null;
+  }
+
   function send(live: boolean, refit = false): void {
     clearEvaluateTimer();
+    if (!live) clearSettleTimer();
     const doc = state.document;
     const variant = activeVariantOf(state);
     if (!doc || !variant) {
@@ -204,12 +228,23 @@ export function createWorkspaceStore(deps: WorkspaceStoreDeps): WorkspaceStore {
     }
     const started = now();
     const horizon = stepHorizon(variant, lastResult);
+    const display = variantForDisplay(variant, lastResult);
+    const base = live && lastFull && lastFull.variantId === variant.id && lastFull.plant === plant && !lastFull.result.error ? lastFull : null;
     update({ evaluation: { ...state.evaluation, status: "running", sent: seq } });
-    deps.bridge
-      .request("project.evaluateVariant", { plant, variant: variantForDisplay(variant, lastResult), requirements: doc.requirements }, { signal: controller.signal })
+    const answer: Promise<{ result: VariantResult; kind: "preview" | "full" }> = base
+      ? deps.bridge.request("project.previewVariant", { plant, variant: display }, { signal: controller.signal }).then((preview) => {
+          const { preview: isPreview, ...fields } = preview;
+          if (!isPreview) return { result: fields, kind: "full" as const };
+          // Plant report from the last full run (same plant object); margins and checks that need
+          // them are left out rather than shown stale.
+          return { result: { ...fields, ...(base.result.plant ? { plant: base.result.plant } : {}) }, kind: "preview" as const };
+        })
+      : deps.bridge.request("project.evaluateVariant", { plant, variant: display, requirements: doc.requirements }, { signal: controller.signal }).then((result) => ({ result, kind: "full" as const }));
+    answer
       .then(
-        (result) => {
-          finish(seq, controller, variant.id, { result }, now() - started);
+        ({ result, kind }) => {
+          if (kind === "full" && !controller.signal.aborted && inFlight?.seq === seq) lastFull = { variantId: variant.id, plant, result };
+          finish(seq, controller, variant.id, { result, kind }, now() - started);
           // The first answer for a variant without its own step times used a guessed horizon;
           // when the response had not settled and the result suggests a longer one, ask once more.
           if (!refit && inFlight === null && evaluateTimer === null && !variant.step && state.evaluation.result === result && stepHorizon(variant, result) > 1.5 * horizon) {
@@ -220,7 +255,7 @@ export function createWorkspaceStore(deps: WorkspaceStoreDeps): WorkspaceStore {
       );
   }
 
-  function finish(seq: number, controller: AbortController, variantId: string, outcome: { result?: VariantResult; error?: unknown }, durationMs: number): void {
+  function finish(seq: number, controller: AbortController, variantId: string, outcome: { result?: VariantResult; kind?: "preview" | "full"; error?: unknown }, durationMs: number): void {
     if (disposed) return;
     const latest = inFlight?.seq === seq;
     if (controller.signal.aborted || !latest) {
@@ -234,10 +269,11 @@ export function createWorkspaceStore(deps: WorkspaceStoreDeps): WorkspaceStore {
     const pending = evaluateTimer !== null;
     if (outcome.result) {
       const r = outcome.result;
+      const kind = outcome.kind ?? "full";
       update({
-        evaluation: { ...state.evaluation, status: pending ? "waiting" : "done", result: r, variantId, error: r.error ? r.error.message : null, durationMs },
+        evaluation: { ...state.evaluation, status: pending ? "waiting" : "done", result: r, variantId, error: r.error ? r.error.message : null, durationMs, preview: kind === "preview" },
       });
-      deps.onResult?.(r, durationMs);
+      deps.onResult?.(r, durationMs, kind);
     } else {
       const error = outcome.error as { kind?: string } | undefined;
       if (error?.kind === "cancelled") {
@@ -249,8 +285,15 @@ export function createWorkspaceStore(deps: WorkspaceStoreDeps): WorkspaceStore {
     if (wasLive && liveDirty) send(true);
   }
 
+  function settle(): void {
+    clearSettleTimer();
+    if (state.evaluation.preview || inFlight?.live || liveDirty) send(false);
+  }
+
   function scheduleEvaluate(live: boolean): void {
     if (live) {
+      clearSettleTimer();
+      settleTimer = setTimeout(settle, settleDelay);
       if (inFlight?.live) {
         liveDirty = true; // sent when the one in flight returns (throttle, latest wins)
         return;
@@ -445,8 +488,10 @@ export function createWorkspaceStore(deps: WorkspaceStoreDeps): WorkspaceStore {
     undo: () => moveUndo(undoStack, redoStack, true, "undid"),
     redo: () => moveUndo(redoStack, undoStack, false, "redid"),
     evaluateNow: () => send(false),
+    settleLiveEdits: () => settle(),
     cancelEvaluation() {
       clearEvaluateTimer();
+      clearSettleTimer();
       if (inFlight) {
         inFlight.controller.abort();
         inFlight = null;
@@ -476,6 +521,7 @@ export function createWorkspaceStore(deps: WorkspaceStoreDeps): WorkspaceStore {
     dispose() {
       disposed = true;
       clearEvaluateTimer();
+      clearSettleTimer();
       if (saveTimer !== null) clearTimeout(saveTimer);
       inFlight?.controller.abort();
       stopWatching?.();

@@ -1,6 +1,6 @@
-import { useRef } from "react";
+import { memo, useCallback, useMemo, useRef } from "react";
 import type { VariantResult, VariantSpec } from "../../../shared-engine/api/contract";
-import { BodePlot, PoleZeroMap, ResponsePlot, type PlotComplex } from "../../plots";
+import { BodePlot, PoleZeroMap, ResponsePlot, type BodeSeries, type PlotComplex, type PoleZeroSeries, type ResponseSeries } from "../../plots";
 import { polesOf, setPlacedPole, type WorkspaceStore } from "../../state/workspace";
 
 interface Props {
@@ -11,6 +11,13 @@ interface Props {
   styleIndex: number;
   width: number;
 }
+
+// While a pole is dragged, every move re-renders the workspace: a plot whose props did not change
+// (same data objects, stable callbacks) is skipped, so only the plots with new data redraw.
+const PoleZeroMapMemo = memo(PoleZeroMap);
+const ResponsePlotMemo = memo(ResponsePlot);
+const BodePlotMemo = memo(BodePlot);
+const NO_POLES: PlotComplex[] = [];
 
 /** A drag is one undo step: moves closer than this in time belong to the same gesture. */
 const GESTURE_GAP_MS = 700;
@@ -32,51 +39,94 @@ export function ResultPlots({ store, variant, result, styleIndex, width }: Props
   const gesture = useRef({ id: 0, last: 0 });
   const placing = variant.stateFeedback?.method === "poles";
   const designName = variant.name ?? variant.id;
-  const designPoles: PlotComplex[] = placing ? polesOf(variant) : (result?.closedLoopPoles ?? []);
+  const stateFeedback = variant.stateFeedback;
+  const closedLoopPoles = result?.closedLoopPoles;
+  // Recomputed only when the feedback spec or the result's poles change (polesOf reads nothing else).
+  const designPoles: PlotComplex[] = useMemo(
+    () => (stateFeedback?.method === "poles" ? polesOf({ ...variant, stateFeedback }) : (closedLoopPoles ?? NO_POLES)),
+    [stateFeedback, closedLoopPoles],
+  );
   const ts = result?.discrete?.sampleTime ?? result?.plant?.sampleTime ?? null;
   const half = Math.floor((width - 12) / 2);
-  const onDragPole = (seriesIndex: number, poleIndex: number, at: PlotComplex) => {
-    if (seriesIndex !== 0 || !placing) return;
+  // The latest props, read by the one stable drag callback (a new callback per render would
+  // re-render the map on every move).
+  const latest = useRef({ store, variantId: variant.id, placing });
+  latest.current = { store, variantId: variant.id, placing };
+  const onDragPole = useCallback((seriesIndex: number, poleIndex: number, at: PlotComplex) => {
+    const { store: s, variantId, placing: isPlacing } = latest.current;
+    if (seriesIndex !== 0 || !isPlacing) return;
     const t = performance.now();
     if (t - gesture.current.last > GESTURE_GAP_MS) gesture.current.id += 1;
     gesture.current.last = t;
     performance.mark?.("lw:drag");
-    setPlacedPole(store, variant.id, poleIndex, roundDragged(at), { live: true, gesture: `drag${gesture.current.id}` });
-  };
+    setPlacedPole(s, variantId, poleIndex, roundDragged(at), { live: true, gesture: `drag${gesture.current.id}` });
+  }, []);
+  const onDragEnd = useCallback(() => latest.current.store.settleLiveEdits(), []);
   const step = result?.step;
   const bode = result?.bode;
+  const margins = result?.margins;
+  const plantPoles = result?.plant?.poles ?? NO_POLES;
+  const plantZeros = result?.plant?.zeros ?? NO_POLES;
+  const poleZeroSeries: PoleZeroSeries[] = useMemo(
+    () => [
+      { name: placing ? `${designName}: placed poles` : `${designName}: closed loop`, poles: designPoles, styleIndex },
+      { name: "Plant (open loop)", poles: plantPoles, zeros: plantZeros, styleIndex: styleIndex + 1 },
+    ],
+    [placing, designName, designPoles, styleIndex, plantPoles, plantZeros],
+  );
+  const stepSeries: ResponseSeries[] | null = useMemo(
+    () =>
+      step
+        ? [
+            {
+              name: designName,
+              time: step.time,
+              output: step.output,
+              outputNames: step.outputNames,
+              control: step.control,
+              metrics: { riseTime: step.riseTime, settlingTime: step.settlingTime, overshootPct: step.overshootPct, peak: step.peak, peakTime: step.peakTime, steadyStateValue: step.steadyStateValue },
+              styleIndex,
+            },
+          ]
+        : null,
+    [step, designName, styleIndex],
+  );
+  const bodeSeries: BodeSeries[] | null = useMemo(
+    () =>
+      bode
+        ? [
+            {
+              name: designName,
+              frequency: bode.frequency,
+              magnitudeDb: bode.magnitudeDb,
+              phaseDeg: bode.phaseDeg,
+              margins: margins ? { gainDb: margins.gainDb, phaseDeg: margins.phaseDeg, gainCrossover: margins.gainCrossover, phaseCrossover: margins.phaseCrossover } : null,
+              styleIndex,
+            },
+          ]
+        : null,
+    [bode, margins, designName, styleIndex],
+  );
   return (
     <div className="result-plots" data-testid="result-plots">
       <div className="plot-row">
         <div className="plot-cell" data-testid="pole-zero-map" style={{ width: half }}>
-          <PoleZeroMap
+          <PoleZeroMapMemo
             title={placing ? "Pole-zero map (drag the design poles)" : "Pole-zero map"}
-            series={[
-              { name: placing ? `${designName}: placed poles` : `${designName}: closed loop`, poles: designPoles, styleIndex },
-              { name: "Plant (open loop)", poles: result?.plant?.poles ?? [], zeros: result?.plant?.zeros ?? [], styleIndex: styleIndex + 1 },
-            ]}
+            series={poleZeroSeries}
             sampleTime={ts}
             width={half}
             height={330}
             onDragPole={placing ? onDragPole : undefined}
+            onDragEnd={placing ? onDragEnd : undefined}
             fileName={`${variant.id}-pole-zero`}
           />
         </div>
         <div className="plot-cell" data-testid="step-response" style={{ width: half }}>
-          {step ? (
-            <ResponsePlot
+          {step && stepSeries ? (
+            <ResponsePlotMemo
               title={`Step response (${step.loop === "closed-loop" ? "closed loop" : "open loop"}, step on ${step.input})`}
-              series={[
-                {
-                  name: designName,
-                  time: step.time,
-                  output: step.output,
-                  outputNames: step.outputNames,
-                  control: step.control,
-                  metrics: { riseTime: step.riseTime, settlingTime: step.settlingTime, overshootPct: step.overshootPct, peak: step.peak, peakTime: step.peakTime, steadyStateValue: step.steadyStateValue },
-                  styleIndex,
-                },
-              ]}
+              series={stepSeries}
               width={half}
               height={330}
               fileName={`${variant.id}-step`}
@@ -88,19 +138,10 @@ export function ResultPlots({ store, variant, result, styleIndex, width }: Props
       </div>
       <div className="plot-row">
         <div className="plot-cell wide" data-testid="bode-plot" style={{ width }}>
-          {bode ? (
-            <BodePlot
+          {bode && bodeSeries ? (
+            <BodePlotMemo
               title={`Bode plot (${bode.loop === "plant-input" ? "loop broken at the plant input" : "plant"}, ${bode.input} → ${bode.output})`}
-              series={[
-                {
-                  name: designName,
-                  frequency: bode.frequency,
-                  magnitudeDb: bode.magnitudeDb,
-                  phaseDeg: bode.phaseDeg,
-                  margins: result?.margins ? { gainDb: result.margins.gainDb, phaseDeg: result.margins.phaseDeg, gainCrossover: result.margins.gainCrossover, phaseCrossover: result.margins.phaseCrossover } : null,
-                  styleIndex,
-                },
-              ]}
+              series={bodeSeries}
               width={width}
               height={360}
               fileName={`${variant.id}-bode`}

@@ -18,6 +18,10 @@ import { MetricsStrip } from "./MetricsStrip";
 import { PlantEditor } from "./PlantEditor";
 import { ResultPlots } from "./ResultPlots";
 import { StructurePanel } from "./StructurePanel";
+import { LocusPanel } from "./LocusPanel";
+import { NonlinearCheckPanel } from "./NonlinearCheckPanel";
+import { NonlinearEditor } from "./NonlinearEditor";
+import { ShortcutsHelp } from "./ShortcutsHelp";
 import { useWorkspaceState } from "./useWorkspaceState";
 import "./workspace.css";
 
@@ -31,11 +35,14 @@ interface Props {
   initialDocument?: ProjectFile;
 }
 
-type Tab = "plant" | "structure" | "design";
+type Tab = "plant" | "structure" | "design" | "equations" | "locus" | "check";
 const TABS: { id: Tab; label: string; key: string }[] = [
   { id: "plant", label: "Plant", key: "1" },
   { id: "structure", label: "Structure", key: "2" },
   { id: "design", label: "Design", key: "3" },
+  { id: "equations", label: "Equations", key: "4" },
+  { id: "locus", label: "Locus", key: "5" },
+  { id: "check", label: "Check", key: "6" },
 ];
 
 /** Owns one workspace store for the open project; flushes pending saves when the screen closes. */
@@ -48,10 +55,10 @@ export function WorkspaceView(props: Props) {
         bridge,
         projectId,
         initialDocument: () => (initialDocument ? structuredClone(initialDocument) : null),
-        onResult: (_result, durationMs) => {
+        onResult: (_result, durationMs, kind) => {
           // Engine time (request to answer, worker included) and frame time of the redraw: from
           // the result's arrival to the next painted frame. Read by `npm run bench:ui`.
-          performance.measure?.("lw:engine", { start: performance.now() - durationMs, duration: durationMs });
+          performance.measure?.("lw:engine", { start: performance.now() - durationMs, duration: durationMs, detail: { kind } });
           performance.mark?.("lw:result");
           requestAnimationFrame(() => requestAnimationFrame(() => performance.measure?.("lw:frame", "lw:result")));
         },
@@ -67,11 +74,12 @@ export function WorkspaceView(props: Props) {
   return <Workspace {...props} store={store} />;
 }
 
-function Workspace({ store, projectName, onClose }: Props & { store: WorkspaceStore }) {
+function Workspace({ store, projectName, onClose, bridge }: Props & { store: WorkspaceStore }) {
+  const [helpOpen, setHelpOpen] = useState(false);
   const state = useWorkspaceState(store);
   const [tab, setTab] = useState<Tab>("design");
   const [editedPlantId, setEditedPlantId] = useState<string | null>(null);
-  const tabRefs = useRef<Record<Tab, HTMLButtonElement | null>>({ plant: null, structure: null, design: null });
+  const tabRefs = useRef<Record<Tab, HTMLButtonElement | null>>({ plant: null, structure: null, design: null, equations: null, locus: null, check: null });
   const plotBox = useRef<HTMLDivElement>(null);
   const [plotWidth, setPlotWidth] = useState(720);
 
@@ -86,6 +94,13 @@ function Workspace({ store, projectName, onClose }: Props & { store: WorkspaceSt
   useEffect(() => {
     const onKey = (e: KeyboardEvent) => {
       const mod = e.ctrlKey || e.metaKey;
+      const typing = e.target instanceof HTMLInputElement || e.target instanceof HTMLTextAreaElement || e.target instanceof HTMLSelectElement;
+      if (e.key === "?" && !mod && !typing) {
+        e.preventDefault();
+        setHelpOpen((open) => !open);
+        return;
+      }
+      if (e.key === "Escape") setHelpOpen(false);
       if (!mod) return;
       const inText = e.target instanceof HTMLInputElement && e.target.type !== "range" && e.target.type !== "checkbox" && e.target.type !== "radio";
       if (e.key.toLowerCase() === "z" && !inText) {
@@ -181,6 +196,9 @@ function Workspace({ store, projectName, onClose }: Props & { store: WorkspaceSt
         <button type="button" className="button-quiet small" disabled={!state.redoLabel} onClick={() => store.redo()} title={state.redoLabel ? `Redo: ${state.redoLabel} (Ctrl+Shift+Z)` : "Nothing to redo"}>
           Redo
         </button>
+        <button type="button" className="button-quiet small" onClick={() => setHelpOpen((open) => !open)} aria-expanded={helpOpen} title="Keyboard shortcuts (?)">
+          Shortcuts (?)
+        </button>
         <span className={`save-status save-${state.save.status}`} data-testid="save-status" role="status">
           {saveText}
         </span>
@@ -204,6 +222,7 @@ function Workspace({ store, projectName, onClose }: Props & { store: WorkspaceSt
           )}
         </div>
       )}
+      <ShortcutsHelp open={helpOpen} onClose={() => setHelpOpen(false)} />
       {state.editError && (
         <div className="warning-box" role="alert" data-testid="edit-error">
           {state.editError}{" "}
@@ -261,6 +280,26 @@ function Workspace({ store, projectName, onClose }: Props & { store: WorkspaceSt
               </>
             )}
             {tab === "structure" && <StructurePanel plant={result?.plant} />}
+            {tab === "equations" && (() => {
+              const nonlinearPlants = doc.plants.filter((p) => p.model.type === "nonlinear");
+              const shown = editedPlant.model.type === "nonlinear" ? editedPlant : nonlinearPlants[0];
+              if (!shown) return <p className="muted">No plant of this project is given by equations; the Plant tab edits the linear ones.</p>;
+              return (
+                <>
+                  {nonlinearPlants.length > 1 && (
+                    <div className="form-row">
+                      <label htmlFor="equations-plant-select">Plant</label>
+                      <select id="equations-plant-select" className="text-input" value={shown.id} onChange={(e) => setEditedPlantId(e.target.value)}>
+                        {nonlinearPlants.map((p) => <option key={p.id} value={p.id}>{p.name ?? p.id}</option>)}
+                      </select>
+                    </div>
+                  )}
+                  <NonlinearEditor store={store} state={state} bridge={bridge} plant={shown} onSelectPlant={(id) => { setEditedPlantId(id); setTab("plant"); }} />
+                </>
+              );
+            })()}
+            {tab === "locus" && (variant ? <LocusPanel bridge={bridge} document={doc} variant={variant} result={result} width={520} /> : <p className="muted">Add a design variant first.</p>)}
+            {tab === "check" && (variant ? <NonlinearCheckPanel bridge={bridge} document={doc} variant={variant} result={result} styleIndex={styleIndex} width={520} /> : <p className="muted">Add a design variant first.</p>)}
             {tab === "design" &&
               (variant ? (
                 <>
