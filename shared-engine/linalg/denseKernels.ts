@@ -7,10 +7,25 @@
  * update reloads and stores out[i][j]; a 2-row × 4-column tile held in locals reaches about
  * 4–5 GFlop/s for n = 20…200 (measured on the CI machine, Node 20).
  */
+import { Matrix } from "ml-matrix";
 import { EngineError } from "../errors";
 
 /** out (m×q) = a (m×p) · b (p×q), all row-major. `out` must not alias `a` or `b`. */
 export function multiplyInto<T extends Float64Array>(a: Float64Array, b: Float64Array, m: number, p: number, q: number, out: T): T {
+  return productKernel(a, b, null, m, p, q, out);
+}
+
+/**
+ * out (m×q) = a (m×p) · b (p×q) + c (m×q), all row-major, each entry rounded as the product
+ * followed by one addition (bit-identical to multiplyInto then `+= c`, without the extra pass).
+ * `out` may alias `c` but not `a` or `b`.
+ */
+export function multiplyAddInto<T extends Float64Array>(a: Float64Array, b: Float64Array, c: Float64Array, m: number, p: number, q: number, out: T): T {
+  return productKernel(a, b, c, m, p, q, out);
+}
+
+// The 2×4 register-tiled product behind multiplyInto / multiplyAddInto (c = null: no addend).
+function productKernel<T extends Float64Array>(a: Float64Array, b: Float64Array, c: Float64Array | null, m: number, p: number, q: number, out: T): T {
   const q4 = q - (q % 4);
   const m2 = m - (m % 2);
   for (let i = 0; i < m2; i += 2) {
@@ -27,6 +42,10 @@ export function multiplyInto<T extends Float64Array>(a: Float64Array, b: Float64
         c00 += a0 * b0; c01 += a0 * b1; c02 += a0 * b2; c03 += a0 * b3;
         c10 += a1 * b0; c11 += a1 * b1; c12 += a1 * b2; c13 += a1 * b3;
       }
+      if (c !== null) {
+        c00 += c[o0 + j]!; c01 += c[o0 + j + 1]!; c02 += c[o0 + j + 2]!; c03 += c[o0 + j + 3]!;
+        c10 += c[o1 + j]!; c11 += c[o1 + j + 1]!; c12 += c[o1 + j + 2]!; c13 += c[o1 + j + 3]!;
+      }
       out[o0 + j] = c00; out[o0 + j + 1] = c01; out[o0 + j + 2] = c02; out[o0 + j + 3] = c03;
       out[o1 + j] = c10; out[o1 + j + 1] = c11; out[o1 + j + 2] = c12; out[o1 + j + 3] = c13;
     }
@@ -37,6 +56,7 @@ export function multiplyInto<T extends Float64Array>(a: Float64Array, b: Float64
         c0 += a[i0 + k]! * bk;
         c1 += a[i1 + k]! * bk;
       }
+      if (c !== null) { c0 += c[o0 + j]!; c1 += c[o1 + j]!; }
       out[o0 + j] = c0;
       out[o1 + j] = c1;
     }
@@ -44,9 +64,9 @@ export function multiplyInto<T extends Float64Array>(a: Float64Array, b: Float64
   for (let i = m2; i < m; i++) {
     const io = i * p;
     for (let j = 0; j < q; j++) {
-      let c = 0;
-      for (let k = 0, kb = j; k < p; k++, kb += q) c += a[io + k]! * b[kb]!;
-      out[i * q + j] = c;
+      let acc = 0;
+      for (let k = 0, kb = j; k < p; k++, kb += q) acc += a[io + k]! * b[kb]!;
+      out[i * q + j] = c !== null ? acc + c[i * q + j]! : acc;
     }
   }
   return out;
@@ -232,4 +252,56 @@ export function frobeniusRowMajor(a: Float64Array): number {
 export function allFinite(a: Float64Array): boolean {
   for (let i = 0; i < a.length; i++) if (!Number.isFinite(a[i]!)) return false;
   return true;
+}
+
+interface MatrixRows { data?: unknown; rows: number; columns: number }
+
+/**
+ * Row-major copy of a Matrix (rows × columns). Reads ml-matrix's row arrays directly when they
+ * are present (one bulk copy per row); element-wise `get` costs a call per entry, which
+ * dominated the conversions at n ≤ 20. Falls back to `get` for any other storage.
+ */
+export function rowMajorOf(m: Matrix): Float64Array {
+  return copyRowMajorInto(m, new Float64Array(m.rows * m.columns));
+}
+
+/** Writes the entries of m (rows × columns) row-major into out[0 .. rows·columns); returns out. */
+export function copyRowMajorInto(m: Matrix, out: Float64Array): Float64Array {
+  const rows = m.rows, cols = m.columns;
+  const data = (m as unknown as MatrixRows).data;
+  if (Array.isArray(data) && data.length === rows) {
+    for (let i = 0; i < rows; i++) {
+      const row = data[i] as unknown;
+      if (!(row instanceof Float64Array) || row.length !== cols) return rowMajorBySlowPath(m, out);
+      out.set(row, i * cols);
+    }
+    return out;
+  }
+  return rowMajorBySlowPath(m, out);
+}
+
+function rowMajorBySlowPath(m: Matrix, out: Float64Array): Float64Array {
+  const cols = m.columns;
+  for (let i = 0; i < m.rows; i++) for (let j = 0; j < cols; j++) out[i * cols + j] = m.get(i, j);
+  return out;
+}
+
+/**
+ * Matrix (rows × cols) holding a copy of the row-major `data`. The rows are views into one
+ * fresh buffer (one allocation instead of one per row, as qzKernels.matrixFromRowMajor does);
+ * falls back to element-wise `set` if ml-matrix ever stores its rows differently.
+ */
+export function matrixOfRowMajor(data: Float64Array, rows: number, cols: number): Matrix {
+  const own = data.slice(0, rows * cols);
+  const m = new Matrix(0, cols) as unknown as MatrixRows;
+  if (!Array.isArray(m.data)) {
+    const copy = new Matrix(rows, cols);
+    for (let i = 0; i < rows; i++) for (let j = 0; j < cols; j++) copy.set(i, j, own[i * cols + j]!);
+    return copy;
+  }
+  const rowViews = new Array<Float64Array>(rows);
+  for (let i = 0; i < rows; i++) rowViews[i] = own.subarray(i * cols, i * cols + cols);
+  m.data = rowViews;
+  m.rows = rows;
+  return m as unknown as Matrix;
 }

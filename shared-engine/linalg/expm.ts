@@ -3,8 +3,8 @@
  */
 import { Matrix } from "ml-matrix";
 import { EngineError } from "../errors";
-import { allFinite, multiplyInto, oneNormRowMajor, solveInPlace } from "./denseKernels";
-import { asMatrix, fromFloat64, requireSquareFinite, toFloat64, type MatrixInput } from "./validate";
+import { matrixOfRowMajor, multiplyAddInto, multiplyInto, oneNormRowMajor, rowMajorOf, solveInPlace } from "./denseKernels";
+import { asMatrix, requireSquareFinite, type MatrixInput } from "./validate";
 
 // θ_m from Higham 2005, Table 2.3: the largest ‖A‖₁ for which the [m/m] Padé approximant
 // has backward error ≤ 2^-53 (unit roundoff) in exact arithmetic. WARNING: changing these
@@ -40,7 +40,7 @@ const PADE_13 = [
  *
  * Cost: for ‖A‖₁ ≤ θ_13, at most 5 matrix products and one LU solve with n right-hand sides,
  * about (2·5 + 8/3)n³ flops; above θ_13, 6 products + the solve + s = ⌈log₂(‖A‖₁/θ_13)⌉
- * squarings (2n³ flops each). Memory: about 10 n×n Float64Arrays.
+ * squarings (2n³ flops each). Memory: one workspace of 8 n×n doubles plus the result.
  *
  * Accuracy: backward error ≤ unit roundoff in exact arithmetic (Higham 2005, Thm 2.1); the
  * forward error is bounded by cond_exp(A)·ε. Measured relative Frobenius difference from the
@@ -62,7 +62,7 @@ export function expm(A: MatrixInput): Matrix {
   const a = asMatrix(A, "A");
   requireSquareFinite(a, "A");
   const n = a.rows;
-  return fromFloat64(expmRowMajor(toFloat64(a), n, "A"), n, n);
+  return matrixOfRowMajor(expmRowMajor(rowMajorOf(a), n, "A"), n, n);
 }
 
 /**
@@ -70,18 +70,21 @@ export function expm(A: MatrixInput): Matrix {
  * Loan integrals. Inputs must already be validated (finite, square).
  */
 export function expmRowMajor(input: Float64Array, n: number, name: string): Float64Array {
-  const a = Float64Array.from(input);
+  const nn = n * n;
+  // One workspace for every temporary (eight n×n slots): at n ≤ 20 a dozen separate typed-array
+  // allocations cost about as much as the arithmetic.
+  const work = new Float64Array(8 * nn);
+  const a = work.subarray(0, nn);
+  a.set(input.subarray(0, nn));
   // Preprocessing: trace reduction (Higham 2005, §2), kept only if it lowers the 1-norm.
   let mu = 0;
   for (let i = 0; i < n; i++) mu += a[i * n + i]!;
   mu /= n;
   let norm = oneNormRowMajor(a, n, n);
   if (mu !== 0) {
-    const shifted = Float64Array.from(a);
-    for (let i = 0; i < n; i++) shifted[i * n + i] -= mu;
-    const shiftedNorm = oneNormRowMajor(shifted, n, n);
+    const shiftedNorm = oneNormShifted(a, n, mu);
     if (shiftedNorm < norm) {
-      a.set(shifted);
+      for (let i = 0; i < n; i++) a[i * n + i] -= mu;
       norm = shiftedNorm;
     } else {
       mu = 0;
@@ -93,18 +96,19 @@ export function expmRowMajor(input: Float64Array, n: number, name: string): Floa
 
   let result: Float64Array;
   let squarings = 0;
-  if (norm <= THETA_3) result = padeLowDegree(a, n, PADE_3, name);
-  else if (norm <= THETA_5) result = padeLowDegree(a, n, PADE_5, name);
-  else if (norm <= THETA_7) result = padeLowDegree(a, n, PADE_7, name);
-  else if (norm <= THETA_9) result = padeLowDegree(a, n, PADE_9, name);
+  if (norm <= THETA_3) result = padeLowDegree(work, n, PADE_3, name);
+  else if (norm <= THETA_5) result = padeLowDegree(work, n, PADE_5, name);
+  else if (norm <= THETA_7) result = padeLowDegree(work, n, PADE_7, name);
+  else if (norm <= THETA_9) result = padeLowDegree(work, n, PADE_9, name);
   else {
     // Scaling: A / 2^s with s = ⌈log₂(‖A‖₁/θ_13)⌉ (Higham 2005, Algorithm 2.3, line 9).
     squarings = Math.max(0, Math.ceil(Math.log2(norm / THETA_13)));
     const factor = Math.pow(2, -squarings); // power of two: the scaling itself is exact
-    for (let i = 0; i < a.length; i++) a[i] *= factor;
-    result = padeDegree13(a, n, name);
-    // Squaring phase: r ← r² s times.
-    let spare: Float64Array = new Float64Array(n * n);
+    for (let i = 0; i < nn; i++) a[i] *= factor;
+    result = padeDegree13(work, n, name);
+    // Squaring phase: r ← r² s times, ping-ponging between the result slot and a free slot.
+    // padeDegree13 leaves r in slot 1; slot 2 (A⁴) is free once the Padé solve is done.
+    let spare: Float64Array = slot(work, nn, 2);
     for (let k = 0; k < squarings; k++) {
       multiplyInto(result, result, n, n, n, spare);
       const t = result;
@@ -112,29 +116,51 @@ export function expmRowMajor(input: Float64Array, n: number, name: string): Floa
       spare = t;
     }
   }
-  if (mu !== 0) {
-    const scale = Math.exp(mu);
-    for (let i = 0; i < result.length; i++) result[i] *= scale;
+  // e^μ scaling and the finiteness check in one pass; the copy detaches the result from `work`.
+  const out = new Float64Array(nn);
+  const scale = mu !== 0 ? Math.exp(mu) : 1;
+  let finite = true;
+  for (let i = 0; i < nn; i++) {
+    const x = result[i]! * scale;
+    out[i] = x;
+    if (x - x !== 0) finite = false; // NaN or ±Infinity
   }
-  if (!allFinite(result)) {
+  if (!finite) {
     throw new EngineError("non-finite", `e^${name} overflows the double range (‖${name}‖₁ = ${oneNormRowMajor(input, n, n).toExponential(3)})`, {
       argument: name, squarings, traceShift: mu,
     });
   }
-  return result;
+  return out;
+}
+
+/** 1-norm of A − μI for a row-major n×n `a`, without forming the shifted matrix. */
+function oneNormShifted(a: Float64Array, n: number, mu: number): number {
+  let best = 0;
+  for (let j = 0; j < n; j++) {
+    let sum = 0;
+    for (let i = 0; i < n; i++) sum += Math.abs(i === j ? a[i * n + j]! - mu : a[i * n + j]!);
+    if (sum > best || Number.isNaN(sum)) best = sum;
+  }
+  return best;
+}
+
+// Workspace layout (slots of n² entries in `work`): 0 = A (scaled), 1.. = powers and sums.
+function slot(work: Float64Array, nn: number, k: number): Float64Array {
+  return work.subarray(k * nn, (k + 1) * nn);
 }
 
 // [m/m] Padé for m ≤ 9 (Higham 2005, eq. (2.3)): U = A Σ_odd b_j A^{j−1}, V = Σ_even b_j A^j,
-// r_m = (V − U)^{-1} (V + U), using the even powers A², A⁴, …
-function padeLowDegree(a: Float64Array, n: number, b: number[], name: string): Float64Array {
+// r_m = (V − U)^{-1} (V + U), using the even powers A², A⁴, … (slots 3.., at most A⁸ in slot 6).
+function padeLowDegree(work: Float64Array, n: number, b: number[], name: string): Float64Array {
   const m = b.length - 1;
   const nn = n * n;
+  const a = slot(work, nn, 0);
+  const uInner = slot(work, nn, 1);
+  const v = slot(work, nn, 2);
   const powers: Float64Array[] = []; // powers[k] = A^{2k}, k ≥ 1
-  const a2 = multiplyInto(a, a, n, n, n, new Float64Array(nn));
+  const a2 = multiplyInto(a, a, n, n, n, slot(work, nn, 3));
   powers[1] = a2;
-  for (let k = 2; 2 * k < m; k++) powers[k] = multiplyInto(powers[k - 1]!, a2, n, n, n, new Float64Array(nn));
-  const uInner = new Float64Array(nn);
-  const v = new Float64Array(nn);
+  for (let k = 2; 2 * k < m; k++) powers[k] = multiplyInto(powers[k - 1]!, a2, n, n, n, slot(work, nn, 2 + k));
   for (let i = 0; i < n; i++) { uInner[i * n + i] = b[1]!; v[i * n + i] = b[0]!; }
   for (let k = 1; 2 * k <= m; k++) {
     const p = powers[k]!;
@@ -142,34 +168,36 @@ function padeLowDegree(a: Float64Array, n: number, b: number[], name: string): F
     const bEven = b[2 * k]!;
     for (let i = 0; i < nn; i++) { uInner[i] += bOdd * p[i]!; v[i] += bEven * p[i]!; }
   }
-  const u = multiplyInto(a, uInner, n, n, n, new Float64Array(nn));
+  const u = multiplyInto(a, uInner, n, n, n, slot(work, nn, 7));
   return padeSolve(u, v, n, name);
 }
 
 // [13/13] Padé (Higham 2005, eq. (2.4)): six products A², A⁴, A⁶, two with A⁶, one with A.
-function padeDegree13(a: Float64Array, n: number, name: string): Float64Array {
+function padeDegree13(work: Float64Array, n: number, name: string): Float64Array {
   const b = PADE_13;
   const nn = n * n;
-  const a2 = multiplyInto(a, a, n, n, n, new Float64Array(nn));
-  const a4 = multiplyInto(a2, a2, n, n, n, new Float64Array(nn));
-  const a6 = multiplyInto(a4, a2, n, n, n, new Float64Array(nn));
-  const w1 = new Float64Array(nn); // b13 A⁶ + b11 A⁴ + b9 A²
-  const z1 = new Float64Array(nn); // b12 A⁶ + b10 A⁴ + b8 A²
-  const w2 = new Float64Array(nn); // b7 A⁶ + b5 A⁴ + b3 A² + b1 I
-  const z2 = new Float64Array(nn); // b6 A⁶ + b4 A⁴ + b2 A² + b0 I
+  const a = slot(work, nn, 0);
+  const a2 = multiplyInto(a, a, n, n, n, slot(work, nn, 1));
+  const a4 = multiplyInto(a2, a2, n, n, n, slot(work, nn, 2));
+  const a6 = multiplyInto(a4, a2, n, n, n, slot(work, nn, 3));
+  const w1 = slot(work, nn, 4); // b13 A⁶ + b11 A⁴ + b9 A²
+  const z1 = slot(work, nn, 5); // b12 A⁶ + b10 A⁴ + b8 A²
+  const w2 = slot(work, nn, 6); // b7 A⁶ + b5 A⁴ + b3 A² + b1 I
+  const z2 = slot(work, nn, 7); // b6 A⁶ + b4 A⁴ + b2 A² + b0 I
+  // coefficients in locals: the loop below is the only O(n²)-per-entry pass outside products
+  const b2 = b[2]!, b3 = b[3]!, b4 = b[4]!, b5 = b[5]!, b6 = b[6]!, b7 = b[7]!;
+  const b8 = b[8]!, b9 = b[9]!, b10 = b[10]!, b11 = b[11]!, b12 = b[12]!, b13 = b[13]!;
   for (let i = 0; i < nn; i++) {
     const x2 = a2[i]!, x4 = a4[i]!, x6 = a6[i]!;
-    w1[i] = b[13]! * x6 + b[11]! * x4 + b[9]! * x2;
-    z1[i] = b[12]! * x6 + b[10]! * x4 + b[8]! * x2;
-    w2[i] = b[7]! * x6 + b[5]! * x4 + b[3]! * x2;
-    z2[i] = b[6]! * x6 + b[4]! * x4 + b[2]! * x2;
+    w1[i] = b13 * x6 + b11 * x4 + b9 * x2;
+    z1[i] = b12 * x6 + b10 * x4 + b8 * x2;
+    w2[i] = b7 * x6 + b5 * x4 + b3 * x2;
+    z2[i] = b6 * x6 + b4 * x4 + b2 * x2;
   }
   for (let i = 0; i < n; i++) { w2[i * n + i] += b[1]!; z2[i * n + i] += b[0]!; }
-  const w = multiplyInto(a6, w1, n, n, n, new Float64Array(nn));
-  for (let i = 0; i < nn; i++) w[i] += w2[i]!;
-  const u = multiplyInto(a, w, n, n, n, a2); // a2 no longer needed: reuse its storage
-  const v = multiplyInto(a6, z1, n, n, n, a4);
-  for (let i = 0; i < nn; i++) v[i] += z2[i]!;
+  const w = multiplyAddInto(a6, w1, w2, n, n, n, w2); // A⁶ w1 + w2
+  const u = multiplyInto(a, w, n, n, n, a2); // a2 no longer needed: reuse its storage (slot 1)
+  const v = multiplyAddInto(a6, z1, z2, n, n, n, z2); // A⁶ z1 + z2
   return padeSolve(u, v, n, name);
 }
 

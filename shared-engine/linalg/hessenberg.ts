@@ -5,7 +5,8 @@
  */
 import { Matrix } from "ml-matrix";
 import { EngineError } from "../errors";
-import { fromFloat64, requireSquareFinite, toFloat64 } from "./validate";
+import { matrixOfRowMajor, rowMajorOf } from "./denseKernels";
+import { requireSquareFinite } from "./validate";
 
 /**
  * Kernel: reduces rows/columns ilo..ihi (0-based, inclusive) of the row-major n×n array `a` to
@@ -20,16 +21,24 @@ import { fromFloat64, requireSquareFinite, toFloat64 } from "./validate";
  * Computations", 4th ed. (2013), Algorithm 7.4.2. The column norm sums squares directly when
  * that sum is safely inside the normal range and falls back to max-abs scaling otherwise, so
  * entries near the underflow or overflow threshold keep full accuracy.
+ * Each two-sided step H_k·A·H_k is applied as one rank-2 update (two passes over the
+ * affected block instead of four; see the comment in the loop).
  * Q is formed afterwards by backward accumulation (as LAPACK dorghr), which touches only the
  * shrinking trailing block. Cost: 10/3·m³ flops for the window size m, plus 4/3·m³ with `q`.
- * Memory: O(n), plus O(n·m) for the stored reflectors when `q` is given.
+ * Memory: a module-level workspace of 4n doubles (+ n² for the stored reflectors when `q` is
+ * given), reused across calls.
  */
 export function reduceToHessenbergInPlace(a: Float64Array, n: number, ilo: number, ihi: number, q: Float64Array | null): void {
-  const v = new Float64Array(n);
-  const w = new Float64Array(n);
+  // One reused workspace instead of five typed arrays per call: at n ≤ 20 their (off-heap)
+  // allocation and collection cost more than the reduction itself.
+  const work = workspace(4 * n + (q ? n * n : 0));
+  const v = work.subarray(0, n);
+  const w = work.subarray(n, 2 * n);
+  const y = work.subarray(2 * n, 3 * n);
+  const taus = work.subarray(3 * n, 4 * n);
+  taus.fill(0); // a skipped step (column already zero) must read as H_k = I below
   // reflectors for the backward accumulation of Q: row k holds v_k (entries k+1..ihi)
-  const reflectors = q ? new Float64Array(n * n) : null;
-  const taus = new Float64Array(n);
+  const reflectors = q ? work.subarray(4 * n, 4 * n + n * n) : null;
   for (let k = ilo; k < ihi - 1; k++) {
     // Householder vector for x = a[k+1..ihi][k] (Golub & Van Loan Alg. 5.1.1).
     const r0 = k + 1;
@@ -68,36 +77,90 @@ export function reduceToHessenbergInPlace(a: Float64Array, n: number, ilo: numbe
     }
     a[r0 * n + k] = beta;
 
-    // Left: a[r0..ihi][k+1..n-1] -= τ v (vᵀ a), accumulated row by row for contiguous access.
-    // (two rows per pass halve the loads and stores of w)
+    // Two-sided update H_k A H_k in two passes instead of four (left product, left update,
+    // right product, right update). With y = A v (rows 0..ihi) and z = Aᵀ v (columns k+1..n−1),
+    // both taken from the same A, and γ = vᵀ y = vᵀ A v:
+    //   (I − τvvᵀ) A (I − τvvᵀ) = A − v (τz)ᵀ − (τy − τ²γ v) vᵀ,
+    // the expansion of the product in Golub & Van Loan Alg. 7.4.2 (the rank-2 form of the
+    // symmetric case, §8.3.1, without its symmetry). v is zero outside r0..ihi.
     for (let j = k + 1; j < n; j++) w[j] = 0;
+    for (let i = 0; i < r0; i++) {
+      const row = i * n;
+      let sum = 0;
+      for (let j = r0; j <= ihi; j++) sum += a[row + j] * v[j];
+      y[i] = sum;
+    }
+    let gamma = 0;
     let i = r0;
     for (; i + 1 <= ihi; i += 2) {
+      // two rows per pass halve the loads and stores of z (held in w)
       const vi = v[i];
       const vi1 = v[i + 1];
       const row = i * n;
       const row1 = row + n;
-      for (let j = k + 1; j < n; j++) w[j] += vi * a[row + j] + vi1 * a[row1 + j];
+      let sum = 0;
+      let sum1 = 0;
+      for (let j = r0; j <= ihi; j++) {
+        const x = a[row + j];
+        const x1 = a[row1 + j];
+        const vj = v[j];
+        sum += x * vj;
+        sum1 += x1 * vj;
+        w[j] += vi * x + vi1 * x1;
+      }
+      for (let j = ihi + 1; j < n; j++) w[j] += vi * a[row + j] + vi1 * a[row1 + j];
+      y[i] = sum;
+      y[i + 1] = sum1;
+      gamma += vi * sum + vi1 * sum1;
     }
     if (i <= ihi) {
       const vi = v[i];
       const row = i * n;
-      for (let j = k + 1; j < n; j++) w[j] += vi * a[row + j];
+      let sum = 0;
+      for (let j = r0; j <= ihi; j++) {
+        const x = a[row + j];
+        sum += x * v[j];
+        w[j] += vi * x;
+      }
+      for (let j = ihi + 1; j < n; j++) w[j] += vi * a[row + j];
+      y[i] = sum;
+      gamma += vi * sum;
     }
-    for (let i2 = r0; i2 <= ihi; i2++) {
-      const f = tau * v[i2];
+    for (let j = k + 1; j < n; j++) w[j] *= tau;
+    const tau2gamma = tau * tau * gamma;
+    for (let i2 = 0; i2 < r0; i2++) {
+      const f = tau * y[i2];
       if (f === 0) continue;
       const row = i2 * n;
-      for (let j = k + 1; j < n; j++) a[row + j] -= f * w[j];
+      for (let j = r0; j <= ihi; j++) a[row + j] -= f * v[j];
     }
-    // Right: a[0..ihi][r0..ihi] -= τ (a v) vᵀ.
-    for (let i = 0; i <= ihi; i++) {
-      const row = i * n;
-      let s = 0;
-      for (let j = r0; j <= ihi; j++) s += a[row + j] * v[j];
-      s *= tau;
-      if (s === 0) continue;
-      for (let j = r0; j <= ihi; j++) a[row + j] -= s * v[j];
+    let i2 = r0;
+    for (; i2 + 1 <= ihi; i2 += 2) {
+      // two rows per pass share the loads of w and v
+      const vi = v[i2];
+      const vi1 = v[i2 + 1];
+      const f = tau * y[i2] - tau2gamma * vi;
+      const f1 = tau * y[i2 + 1] - tau2gamma * vi1;
+      const row = i2 * n;
+      const row1 = row + n;
+      for (let j = r0; j <= ihi; j++) {
+        const wj = w[j];
+        const vj = v[j];
+        a[row + j] -= vi * wj + f * vj;
+        a[row1 + j] -= vi1 * wj + f1 * vj;
+      }
+      for (let j = ihi + 1; j < n; j++) {
+        const wj = w[j];
+        a[row + j] -= vi * wj;
+        a[row1 + j] -= vi1 * wj;
+      }
+    }
+    if (i2 <= ihi) {
+      const vi = v[i2];
+      const f = tau * y[i2] - tau2gamma * vi;
+      const row = i2 * n;
+      for (let j = r0; j <= ihi; j++) a[row + j] -= vi * w[j] + f * v[j];
+      for (let j = ihi + 1; j < n; j++) a[row + j] -= vi * w[j];
     }
     if (reflectors) {
       taus[k] = tau;
@@ -114,17 +177,45 @@ export function reduceToHessenbergInPlace(a: Float64Array, n: number, ilo: numbe
     const r0 = k + 1;
     const vk = k * n;
     for (let j = r0; j <= ihi; j++) w[j] = 0;
-    for (let i = r0; i <= ihi; i++) {
+    let i = r0;
+    for (; i + 1 <= ihi; i += 2) {
+      // two rows per pass halve the loads and stores of w
+      const vi = reflectors[vk + i];
+      const vi1 = reflectors[vk + i + 1];
+      const row = i * n;
+      const row1 = row + n;
+      for (let j = r0; j <= ihi; j++) w[j] += vi * q[row + j] + vi1 * q[row1 + j];
+    }
+    if (i <= ihi) {
       const vi = reflectors[vk + i];
       const row = i * n;
       for (let j = r0; j <= ihi; j++) w[j] += vi * q[row + j];
     }
-    for (let i = r0; i <= ihi; i++) {
+    for (i = r0; i + 1 <= ihi; i += 2) {
+      const f = tau * reflectors[vk + i];
+      const f1 = tau * reflectors[vk + i + 1];
+      const row = i * n;
+      const row1 = row + n;
+      for (let j = r0; j <= ihi; j++) {
+        const wj = w[j];
+        q[row + j] -= f * wj;
+        q[row1 + j] -= f1 * wj;
+      }
+    }
+    if (i <= ihi) {
       const f = tau * reflectors[vk + i];
       const row = i * n;
       for (let j = r0; j <= ihi; j++) q[row + j] -= f * w[j];
     }
   }
+}
+
+// Workspace shared by every call of the (synchronous, non-re-entrant) kernel above; grown on
+// demand, never handed out.
+let sharedWorkspace = new Float64Array(0);
+function workspace(size: number): Float64Array {
+  if (sharedWorkspace.length < size) sharedWorkspace = new Float64Array(Math.max(size, 2 * sharedWorkspace.length));
+  return sharedWorkspace;
 }
 
 /** Row-major n×n identity. */
@@ -160,7 +251,7 @@ export function identityFloat64(n: number): Float64Array {
 export function hessenberg(A: Matrix): { H: Matrix; Q: Matrix } {
   requireSquareFinite(A, "A");
   const n = A.rows;
-  const a = toFloat64(A);
+  const a = rowMajorOf(A);
   const q = identityFloat64(n);
   reduceToHessenbergInPlace(a, n, 0, n - 1, q);
   for (let i = 0; i < n * n; i++) {
@@ -170,5 +261,5 @@ export function hessenberg(A: Matrix): { H: Matrix; Q: Matrix } {
       });
     }
   }
-  return { H: fromFloat64(a, n, n), Q: fromFloat64(q, n, n) };
+  return { H: matrixOfRowMajor(a, n, n), Q: matrixOfRowMajor(q, n, n) };
 }

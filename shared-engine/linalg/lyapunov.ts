@@ -3,10 +3,10 @@
  */
 import { Matrix } from "ml-matrix";
 import { EngineError } from "../errors";
-import { allFinite, frobeniusRowMajor, multiply, transpose } from "./denseKernels";
-import { realSchur } from "./schur";
+import { allFinite, frobeniusRowMajor, multiply, transpose, matrixOfRowMajor, rowMajorOf } from "./denseKernels";
+import { defaultSchurIterationLimit, realSchurRowMajor } from "./schur";
 import { solveQuasiTriangularInPlace, type QuasiTriangularEquation } from "./sylvester";
-import { requireFinite, requireSquareFinite, shapeOf, toFloat64, fromFloat64 } from "./validate";
+import { requireFinite, requireSquareFinite, shapeOf } from "./validate";
 
 function prepare(A: unknown, Q: unknown): { A: Matrix; Q: Matrix; n: number } {
   if (!(A instanceof Matrix)) throw new EngineError("invalid-argument", "A must be a Matrix", { argument: "A" });
@@ -28,11 +28,10 @@ function prepare(A: unknown, Q: unknown): { A: Matrix; Q: Matrix; n: number } {
  * P Sᵀ P is upper quasi-triangular and Z = Y P solves S Z + Z (P Sᵀ P) = F P (resp. the Stein
  * form), so both reuse the Bartels–Stewart kernel with a single Schur decomposition.
  */
-function solveLyapunovKind(kind: QuasiTriangularEquation, A: Matrix, Q: Matrix, n: number, threshold: number, equation: string): Matrix {
-  const schur = realSchur(A);
-  const s = toFloat64(schur.T);
-  const u = toFloat64(schur.Q);
-  const q = toFloat64(Q);
+function solveLyapunovKind(kind: QuasiTriangularEquation, a: Float64Array, Q: Matrix, n: number, threshold: number, equation: string): Matrix {
+  // Row-major Schur kernel: same checks as realSchur, without the Matrix round trips.
+  const { t: s, q: u } = realSchurRowMajor(a, n, defaultSchurIterationLimit(n));
+  const q = rowMajorOf(Q);
   const f = multiply(multiply(transpose(u, n, n), q, n, n, n), u, n, n, n);
   // F P (columns reversed), negated: the kernel solves "= F", our equations have "+ Q = 0".
   const fp = new Float64Array(n * n);
@@ -55,7 +54,7 @@ function solveLyapunovKind(kind: QuasiTriangularEquation, A: Matrix, Q: Matrix, 
     }
   }
   if (!allFinite(x)) throw new EngineError("non-finite", `the solution X of ${equation} overflows (the equation is nearly singular)`, {});
-  return fromFloat64(x, n, n);
+  return matrixOfRowMajor(x, n, n);
 }
 
 /**
@@ -84,8 +83,9 @@ function solveLyapunovKind(kind: QuasiTriangularEquation, A: Matrix, Q: Matrix, 
  */
 export function solveContinuousLyapunov(A: Matrix, Q: Matrix): Matrix {
   const p = prepare(A, Q);
-  const threshold = 20 * p.n * Number.EPSILON * frobeniusRowMajor(toFloat64(p.A));
-  return solveLyapunovKind("sylvester", p.A, p.Q, p.n, threshold, "A X + X Aᵀ + Q = 0");
+  const a = rowMajorOf(p.A);
+  const threshold = 20 * p.n * Number.EPSILON * frobeniusRowMajor(a);
+  return solveLyapunovKind("sylvester", a, p.Q, p.n, threshold, "A X + X Aᵀ + Q = 0");
 }
 
 /**
@@ -115,7 +115,8 @@ export function solveContinuousLyapunov(A: Matrix, Q: Matrix): Matrix {
  */
 export function solveDiscreteLyapunov(A: Matrix, Q: Matrix): Matrix {
   const p = prepare(A, Q);
-  const normA = frobeniusRowMajor(toFloat64(p.A));
+  const a = rowMajorOf(p.A);
+  const normA = frobeniusRowMajor(a);
   const threshold = 20 * p.n * Number.EPSILON * (1 + normA * normA);
-  return solveLyapunovKind("stein", p.A, p.Q, p.n, threshold, "A X Aᵀ − X + Q = 0");
+  return solveLyapunovKind("stein", a, p.Q, p.n, threshold, "A X Aᵀ − X + Q = 0");
 }

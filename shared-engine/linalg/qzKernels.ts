@@ -13,6 +13,7 @@
 import { Matrix } from "ml-matrix";
 import type { Complex } from "./complex";
 import type { GeneralizedEigenvalue } from "./qz";
+import { copyRowMajorInto } from "./denseKernels";
 
 export const SAFE_MIN = 2.2250738585072014e-308;
 export const ULP = Number.EPSILON;
@@ -165,7 +166,8 @@ export function standardizeBlock2(w: PencilWork, j: number, rowStart: number, co
   const { n, S, T } = w;
   const j0 = j * n + j, j1 = j0 + n; // offsets of [j][j] and [j+1][j]
   // 2×2 SVD of T's block: symmetrise, then diagonalise (Golub & Van Loan §8.5.2 Jacobi).
-  let a = T[j0], b = T[j0 + 1], c = T[j1], d = T[j1 + 1];
+  let a = T[j0], b = T[j0 + 1], d = T[j1 + 1];
+  const c = T[j1];
   const theta = Math.atan2(c - b, a + d);
   const c1 = Math.cos(theta), s1 = Math.sin(theta);
   rotateLeft(w, j, j + 1, c1, s1, j, colEnd);
@@ -250,12 +252,8 @@ export function loadPencil(A: Matrix, E: Matrix, withFactors: boolean): PencilWo
   const blocks = withFactors ? 4 : 2;
   const buffer = new Float64Array(blocks * nn + 3 * n);
   const S = buffer.subarray(0, nn), T = buffer.subarray(nn, 2 * nn);
-  for (let i = 0; i < n; i++) {
-    for (let j = 0; j < n; j++) {
-      S[i * n + j] = A.get(i, j);
-      T[i * n + j] = E.get(i, j);
-    }
-  }
+  copyRowMajorInto(A, S); // bulk row copies instead of 2n² Matrix.get calls
+  copyRowMajorInto(E, T);
   let QT: Float64Array | null = null, ZT: Float64Array | null = null;
   if (withFactors) {
     QT = buffer.subarray(2 * nn, 3 * nn);

@@ -5,9 +5,10 @@
  */
 import { Matrix } from "ml-matrix";
 import { EngineError } from "../errors";
+import { matrixOfRowMajor, rowMajorOf } from "./denseKernels";
 import type { Complex } from "./complex";
-import { identityFloat64, reduceToHessenbergInPlace } from "./hessenberg";
-import { fromFloat64, requireSquareFinite, toFloat64 } from "./validate";
+import { reduceToHessenbergInPlace } from "./hessenberg";
+import { requireSquareFinite } from "./validate";
 
 export interface RealSchurForm {
   /** Upper quasi-triangular: 1×1 blocks (real eigenvalues) and standardised 2×2 blocks. */
@@ -211,7 +212,7 @@ export function francisQRInPlace(
   const smlnum = SAFE_MIN * (nh / ULP);
   // Z is updated through its transpose: a reflector then touches three contiguous rows
   // instead of three entries in each of n rows (row-major), which is much kinder to the cache.
-  const zt = z ? transposeSquare(z, n) : null;
+  const zt = z ? transposeInto(z, n, transposeWorkspace(n * n)) : null;
   let i1 = 0;
   let i2 = n - 1;
   let sweeps = 0;
@@ -379,19 +380,151 @@ export function francisQRInPlace(
     kdefl = 0;
     i = l - 1;
   }
-  if (z && zt) z.set(transposeSquare(zt, n));
+  if (z && zt) transposeInto(zt, n, z);
   return sweeps;
 }
 
-function transposeSquare(a: Float64Array, n: number): Float64Array {
-  const out = new Float64Array(n * n);
+// Zᵀ workspace of francisQRInPlace (synchronous, not re-entrant): reused across calls because
+// an n² typed-array allocation per call is a measurable share of the cost at n ≤ 20.
+let sharedTranspose = new Float64Array(0);
+function transposeWorkspace(size: number): Float64Array {
+  if (sharedTranspose.length < size) sharedTranspose = new Float64Array(Math.max(size, 2 * sharedTranspose.length));
+  return sharedTranspose;
+}
+
+/** out (first n² entries) = aᵀ for a row-major n×n `a`; `out` must not alias `a`. */
+function transposeInto(a: Float64Array, n: number, out: Float64Array): Float64Array {
   for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) out[j * n + i] = a[i * n + j];
   return out;
 }
 
-/** One implicit double-shift sweep (dlahqr loop 130): chase the 3×3 bulge from row m to row i. */
+/**
+ * One implicit double-shift sweep (dlahqr loop 130): chase the 3×3 bulge from row m to row i.
+ * Two consecutive 3-row reflectors are applied together where they act on the same data: the
+ * far columns of T's rows k..k+3, T's rows above the bulge (columns k..k+3) and Zᵀ's rows
+ * k..k+3 (one pass loading and storing four entries instead of two passes over three). Every
+ * entry sees the same operations in the same order as with one reflector at a time, so the
+ * result is bit-identical to the unfused sweep, with a third less memory traffic.
+ */
 function chaseBulge(h: Float64Array, n: number, m: number, l: number, i: number, i1: number, i2: number, zt: Float64Array | null, v: Float64Array): void {
-  for (let k2 = m; k2 <= i - 1; k2++) {
+  let k2 = m;
+  while (k2 + 1 <= i - 2) {
+    bulgePairStep(h, n, k2, m, l, i, i1, i2, zt, v);
+    k2 += 2;
+  }
+  for (; k2 <= i - 1; k2++) bulgeStep(h, n, k2, m, l, i, i1, i2, zt, v);
+}
+
+/** Steps k and k+1 of the sweep (both with 3-row reflectors: k + 1 ≤ i − 2), fused as described above. */
+function bulgePairStep(h: Float64Array, n: number, k: number, m: number, l: number, i: number, i1: number, i2: number, zt: Float64Array | null, v: Float64Array): void {
+  // Reflector P1 for step k (as in bulgeStep with nr = 3).
+  if (k > m) {
+    v[0] = h[k * n + k - 1];
+    v[1] = h[(k + 1) * n + k - 1];
+    v[2] = h[(k + 2) * n + k - 1];
+  }
+  const tA1 = householder3(v, 3);
+  if (k > m) {
+    h[k * n + k - 1] = v[0];
+    h[(k + 1) * n + k - 1] = 0;
+    h[(k + 2) * n + k - 1] = 0;
+  } else if (m > l) {
+    h[k * n + k - 1] *= 1 - tA1; // see bulgeStep
+  }
+  const a2 = v[1], a3 = v[2];
+  const tA2 = tA1 * a2, tA3 = tA1 * a3;
+  const r0 = k * n, r1 = r0 + n, r2 = r1 + n, r3 = r2 + n;
+  // P1 from the left on the near columns k..k+2 (the far columns follow in the fused pass).
+  for (let j = k; j <= k + 2; j++) {
+    const sum = h[r0 + j] + a2 * h[r1 + j] + a3 * h[r2 + j];
+    h[r0 + j] -= sum * tA1;
+    h[r1 + j] -= sum * tA2;
+    h[r2 + j] -= sum * tA3;
+  }
+  // P1 from the right on columns k..k+2, rows k..k+3 (k + 3 ≤ i); rows i1..k−1 follow in the
+  // fused column pass at the end (rows above k see only the two right reflectors).
+  for (let j = Math.max(i1, k); j <= k + 3; j++) {
+    const p = j * n + k;
+    const sum = h[p] + a2 * h[p + 1] + a3 * h[p + 2];
+    h[p] -= sum * tA1;
+    h[p + 1] -= sum * tA2;
+    h[p + 2] -= sum * tA3;
+  }
+  // Reflector P2 for step k+1 from column k, rows k+1..k+3.
+  v[0] = h[r1 + k];
+  v[1] = h[r2 + k];
+  v[2] = h[r3 + k];
+  const tB1 = householder3(v, 3);
+  h[r1 + k] = v[0];
+  h[r2 + k] = 0;
+  h[r3 + k] = 0;
+  const b2 = v[1], b3 = v[2];
+  const tB2 = tB1 * b2, tB3 = tB1 * b3;
+  // Far columns k+3..i2: P1 on rows k..k+2, then P2 on rows k+1..k+3, in one pass.
+  for (let j = k + 3; j <= i2; j++) {
+    let x0 = h[r0 + j], x1 = h[r1 + j], x2 = h[r2 + j];
+    const x3 = h[r3 + j];
+    const s1 = x0 + a2 * x1 + a3 * x2;
+    x0 -= s1 * tA1;
+    x1 -= s1 * tA2;
+    x2 -= s1 * tA3;
+    const s2 = x1 + b2 * x2 + b3 * x3;
+    h[r0 + j] = x0;
+    h[r1 + j] = x1 - s2 * tB1;
+    h[r2 + j] = x2 - s2 * tB2;
+    h[r3 + j] = x3 - s2 * tB3;
+  }
+  // P2 from the left on its near columns k+1..k+2.
+  for (let j = k + 1; j <= k + 2; j++) {
+    const sum = h[r1 + j] + b2 * h[r2 + j] + b3 * h[r3 + j];
+    h[r1 + j] -= sum * tB1;
+    h[r2 + j] -= sum * tB2;
+    h[r3 + j] -= sum * tB3;
+  }
+  // P2 from the right on columns k+1..k+3, rows k..min(k+4, i).
+  const jmax = Math.min(k + 4, i);
+  for (let j = Math.max(i1, k); j <= jmax; j++) {
+    const p = j * n + k + 1;
+    const sum = h[p] + b2 * h[p + 1] + b3 * h[p + 2];
+    h[p] -= sum * tB1;
+    h[p + 1] -= sum * tB2;
+    h[p + 2] -= sum * tB3;
+  }
+  // Rows i1..k−1: P1 on columns k..k+2, then P2 on columns k+1..k+3, in one pass.
+  for (let j = i1, p = i1 * n + k; j < k; j++, p += n) {
+    let x0 = h[p], x1 = h[p + 1], x2 = h[p + 2];
+    const x3 = h[p + 3];
+    const s1 = x0 + a2 * x1 + a3 * x2;
+    x0 -= s1 * tA1;
+    x1 -= s1 * tA2;
+    x2 -= s1 * tA3;
+    const s2 = x1 + b2 * x2 + b3 * x3;
+    h[p] = x0;
+    h[p + 1] = x1 - s2 * tB1;
+    h[p + 2] = x2 - s2 * tB2;
+    h[p + 3] = x3 - s2 * tB3;
+  }
+  if (zt) {
+    // rows k..k+3 of Zᵀ: P1 then P2, in one pass
+    for (let j = 0; j < n; j++) {
+      let x0 = zt[r0 + j], x1 = zt[r1 + j], x2 = zt[r2 + j];
+      const x3 = zt[r3 + j];
+      const s1 = x0 + a2 * x1 + a3 * x2;
+      x0 -= s1 * tA1;
+      x1 -= s1 * tA2;
+      x2 -= s1 * tA3;
+      const s2 = x1 + b2 * x2 + b3 * x3;
+      zt[r0 + j] = x0;
+      zt[r1 + j] = x1 - s2 * tB1;
+      zt[r2 + j] = x2 - s2 * tB2;
+      zt[r3 + j] = x3 - s2 * tB3;
+    }
+  }
+}
+
+/** Step k2 of the sweep on its own (dlahqr loop 130 body). */
+function bulgeStep(h: Float64Array, n: number, k2: number, m: number, l: number, i: number, i1: number, i2: number, zt: Float64Array | null, v: Float64Array): void {
+  {
     const nr = Math.min(3, i - k2 + 1);
     if (k2 > m) {
       v[0] = h[k2 * n + k2 - 1];
@@ -536,11 +669,12 @@ export function eigenvaluesOfQuasiTriangular(t: Float64Array, n: number): Comple
  * `tolerance`; a failure means a bug, since the algorithm is backward stable.
  */
 export function checkSchurProbe(a: Float64Array, t: Float64Array, q: Float64Array, n: number, tolerance: number, what: string): void {
-  const x = new Float64Array(n);
+  const work = new Float64Array(5 * n); // one allocation for the five probe vectors
+  const x = work.subarray(0, n);
   for (let i = 0; i < n; i++) x[i] = 1 + ((i * 7919) % 13) / 13; // deterministic, no cancellation pattern
-  const qx = matVec(q, x, n);
-  const aqx = matVec(a, qx, n);
-  const qtx = matVec(q, matVec(t, x, n), n);
+  const qx = matVecInto(q, x, n, work.subarray(n, 2 * n));
+  const aqx = matVecInto(a, qx, n, work.subarray(2 * n, 3 * n));
+  const qtx = matVecInto(q, matVecInto(t, x, n, work.subarray(3 * n, 4 * n)), n, work.subarray(4 * n, 5 * n));
   let normA = 0;
   for (let i = 0; i < n * n; i++) normA += a[i] * a[i];
   normA = Math.sqrt(normA);
@@ -568,8 +702,7 @@ export function checkSchurProbe(a: Float64Array, t: Float64Array, q: Float64Arra
   }
 }
 
-function matVec(m: Float64Array, x: Float64Array, n: number): Float64Array {
-  const y = new Float64Array(n);
+function matVecInto(m: Float64Array, x: Float64Array, n: number, y: Float64Array): Float64Array {
   for (let i = 0; i < n; i++) {
     let s = 0;
     const row = i * n;
@@ -622,9 +755,19 @@ export function realSchur(A: Matrix, options: { maxIterations?: number } = {}): 
       value: maxIterations,
     });
   }
-  const a = toFloat64(A);
+  const { t, q, iterations } = realSchurRowMajor(rowMajorOf(A), n, maxIterations);
+  return { T: matrixOfRowMajor(t, n, n), Q: matrixOfRowMajor(q, n, n), eigenvalues: eigenvaluesOfQuasiTriangular(t, n), iterations };
+}
+
+/**
+ * Kernel behind `realSchur` for callers that already hold a validated row-major copy `a`
+ * (n×n, finite; not modified) and want T and Q row-major, skipping the Matrix round trips:
+ * the same Hessenberg + Francis QR steps, zeroing below the quasi-triangle, finiteness check
+ * and probe check (1000·n·ε) as `realSchur`. Throws the same errors.
+ */
+export function realSchurRowMajor(a: Float64Array, n: number, maxIterations: number): { t: Float64Array; q: Float64Array; iterations: number } {
   const t = a.slice();
-  const q = identityFloat64(n);
+  const q = new Float64Array(n * n); // reduceToHessenbergInPlace overwrites q with Q
   reduceToHessenbergInPlace(t, n, 0, n - 1, q);
   const wr = new Float64Array(n);
   const wi = new Float64Array(n);
@@ -637,5 +780,5 @@ export function realSchur(A: Matrix, options: { maxIterations?: number } = {}): 
     }
   }
   checkSchurProbe(a, t, q, n, 1000 * n * ULP, "realSchur");
-  return { T: fromFloat64(t, n, n), Q: fromFloat64(q, n, n), eigenvalues: eigenvaluesOfQuasiTriangular(t, n), iterations };
+  return { t, q, iterations };
 }

@@ -6,9 +6,9 @@
 import { Matrix } from "ml-matrix";
 import { EngineError } from "../errors";
 import type { Complex } from "./complex";
-import { allFinite, frobeniusRowMajor, multiply, transpose } from "./denseKernels";
-import { realSchur } from "./schur";
-import { requireFinite, requireSquareFinite, shapeOf, toFloat64, fromFloat64 } from "./validate";
+import { allFinite, frobeniusRowMajor, multiply, transpose, matrixOfRowMajor, rowMajorOf } from "./denseKernels";
+import { defaultSchurIterationLimit, realSchurRowMajor } from "./schur";
+import { requireFinite, requireSquareFinite, shapeOf } from "./validate";
 
 /** Which quasi-triangular equation the kernel solves. */
 export type QuasiTriangularEquation = "sylvester" | "stein";
@@ -41,6 +41,12 @@ function blockEigenvalues(t: Float64Array, n: number, i0: number, p: number): Co
   return [{ re: half, im }, { re: half, im: -im }];
 }
 
+// Scratch for solveSmallBlock (at most 4×4): the kernel is synchronous and not re-entrant, so
+// module-level buffers avoid an allocation per block (n²/4…n² blocks per solve).
+const blockMatrixScratch = new Float64Array(16);
+const permutationScratch = new Int32Array(4);
+const solutionScratch = new Float64Array(4);
+
 /**
  * Solves the p×q block equation (p, q ∈ {1, 2}) in place in `r` (row-major p×q):
  * sylvester: Sᵢᵢ Z + Z Tⱼⱼ = R; stein: Sᵢᵢ Z Tⱼⱼ − Z = R. Forms the pq×pq Kronecker matrix and
@@ -52,7 +58,18 @@ function solveSmallBlock(
   t: Float64Array, m: number, j0: number, q: number, r: Float64Array, threshold: number,
 ): number {
   const N = p * q;
-  const M = new Float64Array(N * N);
+  if (N === 1) {
+    // 1×1 block (both eigenvalues real, the common case): the Kronecker "matrix" is the scalar
+    // s_ii + t_jj (or s_ii·t_jj − 1); identical to the general path below, without its setup.
+    const sv = s[i0 * n + i0]!;
+    const tv = t[j0 * m + j0]!;
+    const pivotValue = kind === "sylvester" ? sv + tv : sv * tv - 1;
+    const best = Math.abs(pivotValue);
+    if (!(best > threshold)) return best;
+    r[0] = r[0]! / pivotValue;
+    return best;
+  }
+  const M = blockMatrixScratch;
   for (let ri = 0; ri < p; ri++) {
     for (let ci = 0; ci < q; ci++) {
       const row = ri * q + ci;
@@ -69,7 +86,8 @@ function solveSmallBlock(
       }
     }
   }
-  const perm = [0, 1, 2, 3].slice(0, N); // column permutation
+  const perm = permutationScratch; // column permutation
+  for (let k = 0; k < N; k++) perm[k] = k;
   let minPivot = Infinity;
   for (let k = 0; k < N; k++) {
     let bi = k, bj = k, best = -1;
@@ -93,7 +111,7 @@ function solveSmallBlock(
       r[i] -= l * r[k]!;
     }
   }
-  const z = new Float64Array(N);
+  const z = solutionScratch;
   for (let i = N - 1; i >= 0; i--) {
     let v = r[i]!;
     for (let j = i + 1; j < N; j++) v -= M[i * N + j]! * z[j]!;
@@ -258,19 +276,18 @@ export function solveSylvester(A: Matrix, B: Matrix, C: Matrix): Matrix {
     );
   }
   requireFinite(C, "C");
-  const sa = realSchur(A);
-  const sb = realSchur(B);
-  const s = toFloat64(sa.T);
-  const u = toFloat64(sa.Q);
-  const t = toFloat64(sb.T);
-  const v = toFloat64(sb.Q);
+  // Row-major Schur kernel: the same checks as realSchur, without the Matrix round trips.
+  const a = rowMajorOf(A);
+  const b = rowMajorOf(B);
+  const { t: s, q: u } = realSchurRowMajor(a, n, defaultSchurIterationLimit(n));
+  const { t, q: v } = realSchurRowMajor(b, m, defaultSchurIterationLimit(m));
   // F = Uᵀ C V
-  const f = multiply(multiply(transpose(u, n, n), toFloat64(C), n, n, m), v, n, m, m);
-  const threshold = 10 * Math.max(n, m) * Number.EPSILON * (frobeniusRowMajor(toFloat64(A)) + frobeniusRowMajor(toFloat64(B)));
+  const f = multiply(multiply(transpose(u, n, n), rowMajorOf(C), n, n, m), v, n, m, m);
+  const threshold = 10 * Math.max(n, m) * Number.EPSILON * (frobeniusRowMajor(a) + frobeniusRowMajor(b));
   solveQuasiTriangularInPlace("sylvester", s, n, t, m, f, threshold, { equation: "A X + X B = C", first: "A", second: "B" });
   const x = multiply(multiply(u, f, n, n, m), transpose(v, m, m), n, m, m);
   if (!allFinite(x)) {
     throw new EngineError("non-finite", "the solution X of A X + X B = C overflows (the equation is nearly singular)", {});
   }
-  return fromFloat64(x, n, m);
+  return matrixOfRowMajor(x, n, m);
 }

@@ -1,5 +1,8 @@
 import { describe, it, expect } from "vitest";
-import { multiply, solveInPlace, subtractProductInto, transpose } from "../../../shared-engine/linalg/denseKernels";
+import { Matrix } from "ml-matrix";
+import {
+  matrixOfRowMajor, multiply, multiplyAddInto, multiplyInto, rowMajorOf, solveInPlace, subtractProductInto, transpose,
+} from "../../../shared-engine/linalg/denseKernels";
 import { EngineError } from "../../../shared-engine/errors";
 import { expectAtMost } from "../../helpers/assertions";
 
@@ -92,5 +95,38 @@ describe("dense row-major kernels", () => {
   it("transpose is an involution", () => {
     const a = randomArray(15, 9);
     expect(Array.from(transpose(transpose(a, 3, 5), 5, 3))).toEqual(Array.from(a));
+  });
+});
+
+describe("product-plus-addend and Matrix conversions used by the fast paths", () => {
+  it("multiplyAddInto equals multiplyInto followed by adding c, bit for bit, also when out aliases c", () => {
+    // odd and even shapes exercise the 2×4 tile and both remainder loops
+    for (const [m, p, q] of [[1, 1, 1], [2, 3, 4], [5, 7, 9], [8, 8, 8], [11, 6, 3]] as const) {
+      const a = randomArray(m * p, 11 + m), b = randomArray(p * q, 23 + q), c = randomArray(m * q, 37 + p);
+      const expected = multiplyInto(a, b, m, p, q, new Float64Array(m * q));
+      for (let i = 0; i < expected.length; i++) expected[i] = expected[i]! + c[i]!;
+      const fresh = multiplyAddInto(a, b, c, m, p, q, new Float64Array(m * q));
+      const aliased = multiplyAddInto(a, b, c, m, p, q, c.slice());
+      const inPlace = c.slice();
+      multiplyAddInto(a, b, inPlace, m, p, q, inPlace);
+      for (const got of [fresh, aliased, inPlace]) expect(Array.from(got)).toEqual(Array.from(expected));
+    }
+  });
+
+  it("rowMajorOf and matrixOfRowMajor round-trip the entries and share no storage with their arguments", () => {
+    const rows = [[1, 2, 3], [4, 5, 6]];
+    const m = new Matrix(rows);
+    const flat = rowMajorOf(m);
+    expect(Array.from(flat)).toEqual([1, 2, 3, 4, 5, 6]);
+    flat[0] = 99; // the copy is detached from m
+    expect(m.get(0, 0)).toBe(1);
+    const back = matrixOfRowMajor(flat, 2, 3);
+    expect(back.to2DArray()).toEqual([[99, 2, 3], [4, 5, 6]]);
+    flat[1] = -7; // and the Matrix is detached from the array it was built from
+    expect(back.get(0, 1)).toBe(2);
+    expect(back.rows).toBe(2);
+    expect(back.columns).toBe(3);
+    // a matrix built this way behaves like any other under ml-matrix operations
+    expect(back.transpose().mmul(back).get(2, 2)).toBe(3 * 3 + 6 * 6);
   });
 });
