@@ -37,6 +37,7 @@ import type { PlantSpec, RequirementSpec, VariantSpec } from "./format";
 import type { ComplexJson, VariantResult } from "./result";
 import { checkRequirements } from "./requirements";
 import { assertFiniteResult } from "./finite";
+import { disturbanceStep } from "./disturbanceStep";
 
 export interface EvaluateOptions {
   requirements?: RequirementSpec[];
@@ -223,7 +224,16 @@ function run(plantSpec: PlantSpec, variant: VariantSpec, options: EvaluateOption
       if (!inputLoop || !feedback) throw new EngineError("invalid-argument", `${vpath}.margins: margins at the plant input need a state-feedback design`, {});
       const lm = atPath(`${vpath}.margins`, () => loopMargins(inputLoop));
       result.margins = marginsJson(lm, "plant-input");
-      if (feedback.loopB.columns > 1) result.warnings.push("margins: the loop is broken at the first input with the other inputs' loops closed");
+      if (feedback.loopB.columns > 1 && !compensatorLoop) {
+        // A multi-input loop is broken at each input in turn, the other inputs' loops closed;
+        // the headline margins are those of the first input.
+        result.margins.channels = model.names.inputs.map((name, j) => {
+          const ch = atPath(`${vpath}.margins`, () => loopMargins(loopAtInput(feedback.loopA, feedback.loopB, feedback.loopK, j, T)));
+          return { input: name, gainDb: ch.gainMarginDb, phaseDeg: ch.phaseMarginDeg, delayMargin: ch.delayMarginSec, sensitivityPeak: ch.sensitivityPeak.value };
+        });
+      } else if (feedback.loopB.columns > 1) {
+        result.warnings.push("margins: the observer-based loop is broken at the first input with the other inputs' loops closed");
+      }
       if (compensatorLoop) {
         const sf = loopMargins(loopAtInput(feedback.loopA, feedback.loopB, feedback.loopK, 0, T));
         result.margins.stateFeedbackLoop = { gainDb: sf.gainMarginDb, phaseDeg: sf.phaseMarginDeg };
@@ -235,14 +245,7 @@ function run(plantSpec: PlantSpec, variant: VariantSpec, options: EvaluateOption
   if (variant.step) {
     const system = servoLoop ?? model;
     const times = variant.step.times;
-    if (T !== null) {
-      for (const t of times) {
-        const k = t / T;
-        if (Math.abs(k - Math.round(k)) > 1e-9 * Math.max(1, k)) {
-          throw new EngineError("invalid-argument", `${vpath}.step.times: ${t} s is not a whole number of sample periods (T = ${T} s) of the sampled loop`, {});
-        }
-      }
-    }
+    checkSampleTimes(times, T, `${vpath}.step.times`);
     const resp = atPath(`${vpath}.step`, () => stepResponse(system, times, { input: 0 }));
     const p = model.C.rows;
     const m = model.B.columns;
@@ -278,6 +281,14 @@ function run(plantSpec: PlantSpec, variant: VariantSpec, options: EvaluateOption
     result.warnings.push(...resp.warnings.map((w) => `step: ${w}`));
   }
 
+  // ---- Disturbance step ----------------------------------------------------------------------------
+  if (variant.disturbanceStep) {
+    const spec = variant.disturbanceStep;
+    checkSampleTimes(spec.times, T, `${vpath}.disturbanceStep.times`);
+    const system = servoLoop ?? model;
+    result.disturbanceStep = atPath(`${vpath}.disturbanceStep`, () => disturbanceStep(system, model, spec, servoLoop !== null, `${vpath}.disturbanceStep`));
+  }
+
   // ---- Nonlinear plant: simulation and parameter sweep ------------------------------------------
   if (variant.nonlinearCheck || variant.robustness) {
     const which = variant.nonlinearCheck ? "nonlinearCheck" : "robustness";
@@ -293,6 +304,17 @@ function run(plantSpec: PlantSpec, variant: VariantSpec, options: EvaluateOption
   }
 
   if (options.requirements && options.requirements.length > 0) result.checks.push(...checkRequirements(options.requirements, result));
+}
+
+/** A sampled loop's response exists only at whole sample periods. */
+function checkSampleTimes(times: readonly number[], T: number | null, path: string): void {
+  if (T === null) return;
+  for (const t of times) {
+    const k = t / T;
+    if (Math.abs(k - Math.round(k)) > 1e-9 * Math.max(1, k)) {
+      throw new EngineError("invalid-argument", `${path}: ${t} s is not a whole number of sample periods (T = ${T} s) of the sampled loop`, {});
+    }
+  }
 }
 
 function plantReport(model: StateSpace): NonNullable<VariantResult["plant"]> {

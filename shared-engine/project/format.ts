@@ -117,6 +117,8 @@ export interface VariantSpec {
   bode?: { frequencies: number[] };
   margins?: { feedback: "unity-negative" } | { at: "plant-input" };
   step?: { times: number[] };
+  /** Step of one disturbance (name or 0-based index; default the first) of the given size (default 1). */
+  disturbanceStep?: { times: number[]; disturbance?: string | number; size?: number };
   /**
    * Nonlinear plants only: simulate the nonlinear plant under the designed state feedback
    * (measured states, actuator limits, sampled when the variant discretizes) beside the linear

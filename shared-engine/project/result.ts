@@ -102,6 +102,27 @@ export interface VariantResult {
     diskMargin?: { alpha: number; gainRangeDb: [number, number]; phaseDeg: number };
     closedLoopStable: boolean;
     stateFeedbackLoop?: { gainDb: number | null; phaseDeg: number | null };
+    /** Multi-input loops: the loop broken at each input in turn, the others closed. */
+    channels?: { input: string; gainDb: number | null; phaseDeg: number | null; delayMargin: number | null; sensitivityPeak: number }[];
+  };
+  /** Step of one disturbance (through F and E) from rest, scaled by its size. */
+  disturbanceStep?: {
+    loop: "closed-loop" | "open-loop";
+    disturbance: string;
+    size: number;
+    time: number[];
+    /** output[i][k]: output i at time k. */
+    output: number[][];
+    outputNames: string[];
+    control?: number[][];
+    /** Largest deviation of the first output (signed), and when. */
+    peakDeviation: number;
+    peakTime: number;
+    /** Final value of the first output (DC gain × size); 0 with integral action on it; null when unstable. */
+    steadyStateValue: number | null;
+    /** Last time outside ±2 % of the peak deviation around the final value; null when it never settles. */
+    settlingTime: number | null;
+    status: "settled" | "not-settled-within-horizon" | "unstable";
   };
   step?: {
     /** "closed-loop" when there is state feedback, else "open-loop". */

@@ -298,7 +298,7 @@ function checkVariant(
 ): void {
   const v = c.object(value, path, [
     "id", "name", "description", "plant", "parent", "baseline", "discretize", "stateFeedback", "integralAction",
-    "referenceFeedforward", "observer", "bode", "margins", "step", "nonlinearCheck", "robustness", "notes",
+    "referenceFeedforward", "observer", "bode", "margins", "step", "disturbanceStep", "nonlinearCheck", "robustness", "notes",
   ]);
   if (!v) return;
   checkId(c, v.id, [...path, "id"]);
@@ -412,17 +412,37 @@ function checkVariant(
   checkNonlinearVariantKeys(c, v, path, dims);
   if (v.step !== undefined) {
     const s = c.object(v.step, [...path, "step"], ["times"]);
-    if (s) {
-      const times = c.numberList(s.times, [...path, "step", "times"], { nonEmpty: true });
-      if (times) {
-        if (times.some((t) => t < 0)) c.problem([...path, "step", "times"], "must not be negative");
-        for (let i = 1; i < times.length; i++) {
-          if (!(times[i]! > times[i - 1]!)) {
-            c.problem([...path, "step", "times", i], "times must increase strictly");
-            break;
+    if (s) checkTimes(c, s.times, [...path, "step", "times"]);
+  }
+  if (v.disturbanceStep !== undefined) {
+    const dpath = [...path, "disturbanceStep"];
+    const d = c.object(v.disturbanceStep, dpath, ["times", "disturbance", "size"]);
+    if (d) {
+      checkTimes(c, d.times, [...dpath, "times"]);
+      c.number(d.size, [...dpath, "size"], { optional: true });
+      if (d.size === 0) c.problem([...dpath, "size"], "must not be zero");
+      if (dims && dims.q === 0) c.problem(dpath, "the plant has no disturbance inputs (give F and name its columns)");
+      if (d.disturbance !== undefined) {
+        if (typeof d.disturbance === "number") {
+          if (!Number.isInteger(d.disturbance) || d.disturbance < 0 || (dims && dims.q >= 0 && d.disturbance >= dims.q)) {
+            c.problem([...dpath, "disturbance"], `disturbance index ${d.disturbance} is out of range (the plant has ${dims?.q ?? "?"} disturbances, numbered from 0)`);
           }
+        } else if (typeof d.disturbance !== "string") {
+          c.problem([...dpath, "disturbance"], "must be a disturbance name or a 0-based index");
         }
       }
+    }
+  }
+}
+
+function checkTimes(c: Checker, value: unknown, path: Path): void {
+  const times = c.numberList(value, path, { nonEmpty: true });
+  if (!times) return;
+  if (times.some((t) => t < 0)) c.problem(path, "must not be negative");
+  for (let i = 1; i < times.length; i++) {
+    if (!(times[i]! > times[i - 1]!)) {
+      c.problem([...path, i], "times must increase strictly");
+      break;
     }
   }
 }

@@ -1,0 +1,81 @@
+/**
+ * The disturbance-rejection response of a variant: a step of one disturbance w_j (through F
+ * and E) from rest, through the closed loop when there is one, with the metrics a reviewer reads
+ * for rejection: peak deviation and its time, the final value (zero with integral action on
+ * that output), and the time after which the output stays within ±2 % of the peak deviation
+ * around its final value.
+ */
+import { EngineError } from "../errors";
+import type { StateSpace } from "../model";
+import { dcGain } from "../analysis/dcGain";
+import { poles } from "../analysis/poles";
+import { stepResponse } from "../analysis/timeResponse";
+import type { VariantSpec } from "./format";
+import type { VariantResult } from "./result";
+
+/** Half-width of the settling band, relative to the peak deviation (common practice: 2 %). */
+export const DISTURBANCE_SETTLING_BAND = 0.02;
+
+export function disturbanceStep(
+  system: StateSpace,
+  plant: StateSpace,
+  spec: NonNullable<VariantSpec["disturbanceStep"]>,
+  closed: boolean,
+  path: string,
+): NonNullable<VariantResult["disturbanceStep"]> {
+  const q = plant.F.columns;
+  if (q === 0) throw new EngineError("invalid-argument", `${path}: the plant has no disturbance inputs (F has no columns)`, {});
+  const which = spec.disturbance ?? 0;
+  const index = typeof which === "number" ? which : plant.names.disturbances.indexOf(which);
+  if (index < 0 || index >= q) {
+    throw new EngineError("invalid-argument", `${path}.disturbance: names no disturbance (${JSON.stringify(which)}); disturbances are: ${plant.names.disturbances.join(", ")}`, {});
+  }
+  const size = spec.size ?? 1;
+  const resp = stepResponse(system, spec.times, { input: index, from: "disturbance" });
+  const p = plant.C.rows;
+  const m = plant.B.columns;
+  const T = system.sampleTime;
+  const ps = poles(system);
+  const stable = T === null ? ps.every((s) => s.re < 0) : ps.every((s) => Math.hypot(s.re, s.im) < 1);
+  const y = resp.outputs[0]!.map((v) => v * size);
+  const dc = stable ? dcGain({ ...system, B: system.F, D: system.E }) : null;
+  const finalValue = dc && dc.gain ? dc.gain[0]![index]! * size : null;
+  let peakIndex = 0;
+  y.forEach((v, k) => {
+    if (Math.abs(v) > Math.abs(y[peakIndex]!)) peakIndex = k;
+  });
+  const peakDeviation = y[peakIndex]!;
+  let settlingTime: number | null = null;
+  let status: "settled" | "not-settled-within-horizon" | "unstable" = stable ? "settled" : "unstable";
+  if (stable && finalValue !== null) {
+    const band = DISTURBANCE_SETTLING_BAND * Math.max(Math.abs(peakDeviation), Math.abs(finalValue));
+    let last = -1;
+    y.forEach((v, k) => {
+      if (Math.abs(v - finalValue) > band) last = k;
+    });
+    if (last === y.length - 1) {
+      status = "not-settled-within-horizon";
+    } else if (last < 0) {
+      settlingTime = resp.time[0]!;
+    } else {
+      // Interpolate the last exit from the band between samples last and last + 1.
+      const t0 = resp.time[last]!, t1 = resp.time[last + 1]!;
+      const e0 = Math.abs(y[last]! - finalValue) - band, e1 = Math.abs(y[last + 1]! - finalValue) - band;
+      settlingTime = e0 === e1 ? t1 : t0 + ((t1 - t0) * e0) / (e0 - e1);
+    }
+  }
+  return {
+    loop: closed ? "closed-loop" : "open-loop",
+    disturbance: plant.names.disturbances[index] ?? `w${index + 1}`,
+    size,
+    time: resp.time,
+    output: resp.outputs.slice(0, p).map((row) => row.map((v) => v * size)),
+    outputNames: [...plant.names.outputs],
+    ...(closed ? { control: resp.outputs.slice(p, p + m).map((row) => row.map((v) => v * size)) } : {}),
+    peakDeviation,
+    peakTime: resp.time[peakIndex]!,
+    steadyStateValue: finalValue,
+    settlingTime,
+    status,
+  };
+}
