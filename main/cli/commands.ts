@@ -10,6 +10,7 @@ import { analyze } from "./analyzeCommand";
 import { discretizeCommand } from "./discretizeCommand";
 import { locus } from "./locusCommand";
 import { sheet } from "./sheetCommand";
+import { controller } from "./controllerCommand";
 
 export interface Command {
   name: string;
@@ -70,4 +71,4 @@ const call: Command = {
   },
 };
 
-export const commands: readonly Command[] = [design, validate, sheet, analyze, discretizeCommand, locus, info, eigenvaluesCommand, call];
+export const commands: readonly Command[] = [design, validate, sheet, controller, analyze, discretizeCommand, locus, info, eigenvaluesCommand, call];

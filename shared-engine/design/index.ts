@@ -13,3 +13,4 @@ export { augmentWithIntegrators, designIntegralLqr, designIntegralPoles, checkSe
 export { referenceFeedforward, FEEDFORWARD_WARNING } from "./feedforward";
 export { assembleCompensator, type CompensatorSpec, type AssembledCompensator } from "./compensator";
 export { integratorUpdate, saturate, type AntiWindupController, type AntiWindupMethod } from "./antiWindup";
+export { controllerImplementation, type ControllerImplementation, type ControllerDesign, type ImplementationOptions } from "./implementation";
