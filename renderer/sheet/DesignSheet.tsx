@@ -7,6 +7,9 @@ import { BodePlot } from "../plots/BodePlot";
 import { PoleZeroMap } from "../plots/PoleZeroMap";
 import { ResponsePlot } from "../plots/ResponsePlot";
 import type { PoleZeroSeries } from "../plots/poleZeroModel";
+import { ChannelMarginsTable, DisturbanceSection, NonlinearCheckSection, RobustnessSection } from "./CheckSections";
+import { LimitsTable, NonlinearPlantSection } from "./NonlinearPlantSection";
+import { KeyValues, MatrixTable, PoleTable } from "./sheetParts";
 import {
   SIGN_OFF_ROLES,
   assumptions,
@@ -16,10 +19,8 @@ import {
   methodParameters,
   optional,
   plantMatrices,
-  poleRows,
   requirementRows,
   rounded,
-  type LabelledMatrix,
   type SheetInput,
   type SheetModel,
 } from "./sheetModel";
@@ -33,82 +34,6 @@ export const SHEET_CAUTIONS = [
 
 const PLOT_WIDTH = 640;
 const count = (n: number, noun: string): string => `${n} ${noun}${n === 1 ? "" : "s"}`;
-
-function MatrixTable({ m, precision }: { m: LabelledMatrix; precision: "full" | "rounded" }) {
-  return (
-    <table className="lw-sheet-matrix">
-      <caption>
-        <span className="mono">{m.symbol}</span> <span className="muted">— {m.caption}{precision === "full" ? ", full precision" : precision === "rounded" && m.entryUnit ? ", rounded to 4 digits" : ""}</span>
-      </caption>
-      <thead>
-        <tr>
-          <th scope="col" />
-          {m.columnLabels.map((c, j) => <th key={j} scope="col">{c}</th>)}
-        </tr>
-      </thead>
-      <tbody>
-        {m.values.map((row, i) => (
-          <tr key={i}>
-            <th scope="row">{m.rowLabels[i] ?? `row ${i + 1}`}</th>
-            {row.map((v, j) => {
-              const unit = m.entryUnit?.(i, j);
-              return <td key={j} className="num">{precision === "full" ? fullDigits(v) : rounded(v)}{unit && precision === "rounded" ? <span className="muted"> {unit}</span> : null}</td>;
-            })}
-          </tr>
-        ))}
-      </tbody>
-    </table>
-  );
-}
-
-function PoleTable({ title, poles, sampleTime }: { title: string; poles: readonly { re: number; im: number }[]; sampleTime: number | null }) {
-  const rows = poleRows(poles, sampleTime);
-  const sampled = sampleTime !== null;
-  return (
-    <div className="lw-sheet-keep">
-      <h3>{title}</h3>
-      {sampled && <p className="muted">Sampled poles z are mapped to equivalent continuous poles through s = ln(z)/T with T = {fullDigits(sampleTime)} s; ζ, ωn and τ are read from s.</p>}
-      <table className="lw-sheet-wide">
-        <thead>
-          <tr>
-            <th>#</th>
-            <th>{sampled ? "pole z" : "pole s (1/s)"}</th>
-            {sampled && <th>|z|</th>}
-            {sampled && <th>s = ln(z)/T (1/s)</th>}
-            <th>damping ratio ζ</th>
-            <th>natural frequency ωn (rad/s)</th>
-            <th>time constant τ (s)</th>
-          </tr>
-        </thead>
-        <tbody>
-          {rows.map((r, i) => (
-            <tr key={i}>
-              <td className="num">{i + 1}</td>
-              <td className="num">{r.pole}</td>
-              {sampled && <td className="num">{r.magnitude}</td>}
-              {sampled && <td className="num">{r.equivalent}</td>}
-              <td className="num">{r.dampingRatio}</td>
-              <td className="num">{r.naturalFrequency}</td>
-              <td className="num">{r.timeConstant}</td>
-            </tr>
-          ))}
-        </tbody>
-      </table>
-    </div>
-  );
-}
-
-function KeyValues({ rows }: { rows: readonly { term: string; value: string }[] }) {
-  return (
-    <table className="lw-sheet-kv lw-sheet-wide">
-      <tbody>
-        {rows.map((r, i) => (
-          <tr key={i}><th scope="row">{r.term}</th><td className="num">{r.value}</td></tr>
-        ))}
-      </tbody>
-    </table>
-  );
-}
 
 function MarginsSection({ model }: { model: SheetModel }) {
   const m = model.input.result.margins;
@@ -223,6 +148,16 @@ function ChangedBanner({ model }: { model: SheetModel }) {
   );
 }
 
+/** Numbers of the optional result sections (after 8 Step response) and of the first section after them. */
+function sectionNumbers(result: SheetInput["result"]): { disturbance: number; nonlinear: number; robustness: number; next: number } {
+  let next = 9;
+  const take = (present: boolean): number => (present && !result.error ? next++ : 0);
+  const disturbance = take(result.disturbanceStep !== undefined);
+  const nonlinear = take(result.nonlinear !== undefined);
+  const robustness = take(result.robustness !== undefined);
+  return { disturbance, nonlinear, robustness, next };
+}
+
 export function DesignSheet(props: SheetInput) {
   const model = buildSheetModel(props);
   const { project, result } = props;
@@ -231,6 +166,7 @@ export function DesignSheet(props: SheetInput) {
   const requirements = requirementRows(project, result);
   const gains = gainMatrices(result, variant, labels);
   const otherChecks = result.checks.filter((c) => !c.name.startsWith("requirement:"));
+  const checkNumbers = sectionNumbers(result);
   const pzSeries: PoleZeroSeries[] = [
     ...(result.closedLoopPoles ? [{ name: "closed loop", poles: result.closedLoopPoles, styleIndex: 0 }] : []),
     ...(result.plant ? [{ name: "plant (open loop)", poles: result.plant.poles, zeros: result.plant.zeros ?? [], styleIndex: 1 }] : []),
@@ -265,7 +201,7 @@ export function DesignSheet(props: SheetInput) {
         <h2>2 Plant: {plant.name ?? plant.id}</h2>
         <p>
           {count(labels.states.length, "state")}, {count(labels.inputs.length, "input")}, {count(labels.outputs.length, "output")}, {count(labels.disturbances.length, "disturbance")};{" "}
-          {spec.sampleTime === null ? "continuous time" : `sampled, T = ${fullDigits(spec.sampleTime)} s`}. Model x′ = Ax + Bu + Fw, y = Cx + Du + Ew.
+          {spec.sampleTime === null ? "continuous time" : `sampled, T = ${fullDigits(spec.sampleTime)} s`}.{spec.type === "nonlinear" ? " Linearized model δx′ = Aδx + Bδu + Fδw, δy = Cδx + Dδu + Eδw." : " Model x′ = Ax + Bu + Fw, y = Cx + Du + Ew."}
           {result.plant && ` ${result.plant.controllable ? "Controllable" : result.plant.stabilizable ? "Stabilizable, not controllable" : "NOT stabilizable"}; ${result.plant.observable ? "observable" : result.plant.detectable ? "detectable, not observable" : "NOT detectable"}.`}
         </p>
         {spec.type === "state-space" ? (
@@ -275,7 +211,7 @@ export function DesignSheet(props: SheetInput) {
         ) : spec.type === "zero-pole-gain" ? (
           <KeyValues rows={[{ term: "Zeros", value: JSON.stringify(spec.zeros) }, { term: "Poles", value: JSON.stringify(spec.poles) }, { term: "Gain", value: fullDigits(spec.gain) }]} />
         ) : (
-          <p>Nonlinear equations, linearized about the operating point by the engine; the linear model the design used is below when it was discretized, and its poles follow.</p>
+          <NonlinearPlantSection model={model} spec={spec} />
         )}
         {result.discrete && (
           <>
@@ -289,6 +225,7 @@ export function DesignSheet(props: SheetInput) {
       <section className="lw-sheet-section">
         <h2>3 Assumptions and limits</h2>
         <ul>{assumptions(plant, variant, result).map((a, i) => <li key={i}>{a}</li>)}</ul>
+        {spec.type === "nonlinear" && <LimitsTable spec={spec} />}
       </section>
 
       <section className="lw-sheet-section">
@@ -328,6 +265,7 @@ export function DesignSheet(props: SheetInput) {
           <section className="lw-sheet-section">
             <h2>7 Margins at the plant input and sensitivity peaks</h2>
             <MarginsSection model={model} />
+            <ChannelMarginsTable model={model} />
             {result.bode ? (
               <div className="lw-sheet-figure">
                 <BodePlot
@@ -347,13 +285,16 @@ export function DesignSheet(props: SheetInput) {
             <h2>8 Step response</h2>
             <StepSection model={model} />
           </section>
+          <DisturbanceSection model={model} number={checkNumbers.disturbance} />
+          <NonlinearCheckSection model={model} number={checkNumbers.nonlinear} />
+          <RobustnessSection model={model} number={checkNumbers.robustness} />
         </>
       )}
 
       <section className="lw-sheet-section">
-        <h2>9 Requirements checklist</h2>
+        <h2>{checkNumbers.next} Requirements checklist</h2>
         {requirements.length === 0 ? <p>The project states no requirements.</p> : (
-          <table className="lw-sheet-wide">
+          <table className="lw-sheet-wide lw-sheet-requirements">
             <thead><tr><th>Requirement</th><th>Description</th><th>Limit</th><th>Value</th><th>Result</th></tr></thead>
             <tbody>
               {requirements.map((r) => (
@@ -368,7 +309,7 @@ export function DesignSheet(props: SheetInput) {
       </section>
 
       <section className="lw-sheet-section">
-        <h2>10 Diagnostics</h2>
+        <h2>{checkNumbers.next + 1} Diagnostics</h2>
         <KeyValues
           rows={[
             ...(result.design ? [{ term: "Method", value: result.design.method }, { term: "Gain norm ‖K‖F", value: rounded(result.design.gainNorm, 6) }] : []),
@@ -388,7 +329,7 @@ export function DesignSheet(props: SheetInput) {
       </section>
 
       <section className="lw-sheet-section lw-sheet-keep">
-        <h2>11 Fingerprint and sign-off</h2>
+        <h2>{checkNumbers.next + 2} Fingerprint and sign-off</h2>
         <p>
           Design fingerprint <span className="lw-sheet-fingerprint">{model.fingerprint}</span> — SHA-256 of the plant, the variant and the engine version ({props.engineVersion}) in canonical JSON. A sign-off applies only to the design with this fingerprint.
         </p>

@@ -9,6 +9,7 @@ import type { PlantSpec, ProjectFile, VariantResult, VariantSpec } from "../../s
 export type SignOffSpec = NonNullable<ProjectFile["signOffs"]>[number];
 import { formatComplex, formatReal } from "../../shared-engine/format";
 import { fingerprint } from "../../shared-engine/project/fingerprint";
+import { limitSentences } from "./nonlinearPlantSheet";
 
 export type PageSize = "a4" | "letter";
 export type SignOffRole = SignOffSpec["role"];
@@ -131,7 +132,15 @@ export function signalLabels(plant: PlantSpec, result: VariantResult): SignalLab
   const count = (key: "states" | "inputs" | "outputs" | "disturbances"): number => dims?.[key] ?? reported?.[key].length ?? 0;
   // Nonlinear plants carry their names in the equations; the result's names are used for them.
   const modelNames = "names" in model ? (model.names as { states?: string[]; inputs?: string[]; outputs?: string[]; disturbances?: string[] } | undefined) : undefined;
-  const units = ("units" in model ? (model.units as typeof modelNames) : undefined) ?? {};
+  const units =
+    model.type === "nonlinear"
+      ? {
+          states: model.states.map((x) => x.unit ?? ""),
+          inputs: model.inputs.map((u) => u.unit ?? ""),
+          outputs: model.outputs.map((y) => y.unit ?? ""),
+          disturbances: model.disturbances.map((w) => w.unit ?? ""),
+        }
+      : (("units" in model ? (model.units as typeof modelNames) : undefined) ?? {});
   return {
     states: reported?.states ?? names(modelNames?.states, count("states"), "x"),
     inputs: reported?.inputs ?? names(modelNames?.inputs, count("inputs"), "u"),
@@ -245,10 +254,15 @@ export function assumptions(plant: PlantSpec, variant: VariantSpec, result: Vari
   } else if (T !== null) list.push(`The plant is given sampled with period T = ${fullDigits(T)} s.`);
   else list.push("Continuous time: the controller is assumed to act continuously (no sampling).");
   list.push("No input or output transport delays are modelled; the delay margin below says how much delay the loop tolerates.");
+  list.push(...limitSentences(plant, variant.nonlinearCheck !== undefined));
   if (variant.integralAction?.antiWindup && variant.integralAction.antiWindup !== "none") {
     list.push(`Actuator limits are not part of the linear design; anti-windup (${variant.integralAction.antiWindup}) is specified for the integrators.`);
-  } else list.push("No actuator limits are recorded: the linear design assumes the actuator never saturates.");
-  list.push("The model is linear (for a linearised plant: valid near its operating point only) and the design is checked on this nominal model only.");
+  }
+  if (plant.model.type === "nonlinear") {
+    list.push(
+      `The design uses the linearization of the equations at the operating point (valid near it only)${variant.nonlinearCheck ? "; the nonlinear check below goes back to the equations" : ""}${variant.robustness ? "; the robustness sweep re-solves and re-linearizes over parameter changes" : ""}.`,
+    );
+  } else list.push("The model is linear (for a linearised plant: valid near its operating point only) and the design is checked on this nominal model only.");
   if (result.plant && result.plant.stable === false) list.push("The open-loop plant is not stable: the loop must be closed for safe operation.");
   return list;
 }

@@ -73,6 +73,11 @@ body.lw-sheet-body { margin: 0; background: #fff; }
 .lw-sheet .lw-sheet-matrix caption { caption-side: top; text-align: left; font-weight: 600; padding-bottom: 0.5mm; }
 .lw-sheet .lw-sheet-matrix th[scope="row"] { background: #f4f4f4; }
 .lw-sheet .lw-sheet-matrices { display: flex; flex-wrap: wrap; gap: 0 6mm; }
+.lw-sheet table.lw-sheet-equations { table-layout: fixed; }
+.lw-sheet table.lw-sheet-equations th:first-child { width: 40mm; }
+.lw-sheet table.lw-sheet-equations th:nth-child(2) { width: 26mm; }
+.lw-sheet td.lw-sheet-equation { white-space: pre-wrap; overflow-wrap: anywhere; }
+.lw-sheet table.lw-sheet-requirements td.num:nth-child(4) { white-space: normal; }
 .lw-sheet .lw-pass { font-weight: 700; }
 .lw-sheet .lw-fail { font-weight: 800; text-decoration: underline; }
 .lw-sheet .lw-sheet-figure { break-inside: avoid; page-break-inside: avoid; margin: 2mm 0; }

@@ -218,6 +218,68 @@ export const COMPARE_ROWS: readonly RowDefinition[] = [
     read: (r) => number(r.step?.peakInput),
   },
   {
+    key: "disturbancePeakDeviation",
+    label: "Disturbance step: peak deviation",
+    unit: "",
+    rule: "closer-to-zero",
+    ruleText: "lower |·| is better: the disturbance moves the output less",
+    metrics: [],
+    read: (r) => number(r.disturbanceStep?.peakDeviation),
+  },
+  {
+    key: "disturbanceSettlingTime",
+    label: "Disturbance step: settling time",
+    unit: "s",
+    rule: "lower",
+    ruleText: "lower is better: faster recovery (never settling ranks last)",
+    metrics: [],
+    read: (r) => (r.disturbanceStep ? (r.disturbanceStep.settlingTime === null ? { value: null, text: "does not settle", worst: true } : { value: r.disturbanceStep.settlingTime }) : undefined),
+  },
+  {
+    key: "disturbanceFinalValue",
+    label: "Disturbance step: final value",
+    unit: "",
+    rule: "closer-to-zero",
+    ruleText: "|·| closer to 0 is better: no lasting offset (unstable ranks last)",
+    metrics: [],
+    read: (r) => (r.disturbanceStep ? (r.disturbanceStep.steadyStateValue === null ? { value: null, text: "unstable", worst: true } : { value: r.disturbanceStep.steadyStateValue }) : undefined),
+  },
+  {
+    key: "robustAllStable",
+    label: "Robustness sweep: stable at every sample",
+    unit: "",
+    rule: "higher",
+    ruleText: "yes is better: the fixed gain keeps every parameter sample stable",
+    metrics: [],
+    read: (r) => (r.robustness ? { value: r.robustness.allStable ? 1 : 0, text: r.robustness.allStable ? `yes (${r.robustness.samples} samples)` : `no (${r.robustness.failedSamples} of ${r.robustness.samples} failed)` } : undefined),
+  },
+  {
+    key: "robustWorstPhaseMarginDeg",
+    label: "Robustness sweep: worst phase margin",
+    unit: "°",
+    rule: "higher",
+    ruleText: "higher is better: the smallest phase margin over the parameter samples (no crossing counts as unbounded)",
+    metrics: [],
+    read: (r) => {
+      const rob = r.robustness;
+      if (!rob) return undefined;
+      if (rob.worstPhaseMarginDeg !== null) return { value: rob.worstPhaseMarginDeg };
+      // null: no gain crossing at any sample (unbounded) for a single-input loop with samples left;
+      // otherwise the sweep computed no margins (several inputs, or every sample failed).
+      const singleInput = (r.gain?.K.length ?? 0) === 1;
+      return singleInput && rob.failedSamples < rob.samples ? { value: null, unbounded: true, text: "∞ (no crossing)" } : { value: null, text: "not computed" };
+    },
+  },
+  {
+    key: "nonlinearLargestDivergence",
+    label: "Nonlinear check: largest divergence",
+    unit: "",
+    rule: "lower",
+    ruleText: "lower is better: the nonlinear plant stays closer to the linear prediction",
+    metrics: [],
+    read: (r) => (r.nonlinear ? (r.nonlinear.largestDivergence ? { value: r.nonlinear.largestDivergence.size, text: `${formatNumber(r.nonlinear.largestDivergence.size)} (${r.nonlinear.largestDivergence.output} at ${formatNumber(r.nonlinear.largestDivergence.time)} s)` } : { value: null, text: "no outputs" }) : undefined),
+  },
+  {
     key: "riccatiResidual",
     label: "Riccati relative residual",
     unit: "",

@@ -58,7 +58,7 @@ export function CompareTableView({ table }: { table: ComparisonTable }) {
           ))}
         </tbody>
       </table>
-      <p className="muted hint">★ marks the better value of each row by the rule in the last column. Disturbance-step metrics are not yet part of the engine's result and so are not compared.</p>
+      <p className="muted hint">★ marks the better value of each row by the rule in the last column.</p>
     </div>
   );
 }
