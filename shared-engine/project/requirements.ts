@@ -25,6 +25,19 @@ export const REQUIREMENT_METRICS: Record<string, RequirementMetric> = {
   delayMargin: { read: (r) => r.margins?.delayMargin, unit: "s", label: "delay margin", nullMeans: "infinite" },
   sensitivityPeak: { read: (r) => r.margins?.sensitivityPeak, unit: "", label: "sensitivity peak Ms" },
   gainNorm: { read: (r) => r.design?.gainNorm, unit: "", label: "gain norm ‖K‖_F" },
+  disturbancePeak: { read: (r) => (r.disturbanceStep ? Math.abs(r.disturbanceStep.peakDeviation) : undefined), unit: "", label: "|peak deviation| after the disturbance step" },
+  disturbanceSettlingTime: { read: (r) => r.disturbanceStep?.settlingTime, unit: "s", label: "settling time after the disturbance step" },
+  disturbanceFinalValue: {
+    read: (r) => (r.disturbanceStep ? (r.disturbanceStep.steadyStateValue === null ? null : Math.abs(r.disturbanceStep.steadyStateValue)) : undefined),
+    unit: "",
+    label: "|final value| after the disturbance step",
+  },
+  nonlinearDivergence: {
+    read: (r) => (r.nonlinear ? (r.nonlinear.largestDivergence?.size ?? null) : undefined),
+    unit: "",
+    label: "largest |nonlinear − linear| output difference",
+  },
+  robustWorstPhaseMarginDeg: { read: (r) => (r.robustness ? r.robustness.worstPhaseMarginDeg : undefined), unit: "°", label: "worst phase margin over the robustness sweep", nullMeans: "infinite" },
   slowestPoleRealPart: {
     read: (r) => (r.closedLoopPoles && r.closedLoopPoles.length > 0 ? Math.max(...r.closedLoopPoles.map((p) => p.re)) : undefined),
     unit: "1/s",

@@ -21,6 +21,11 @@ export const REQUIREMENT_METRIC_CHOICES: readonly { metric: string; label: strin
   { metric: "delayMargin", label: "delay margin", unit: "s", usualBound: "min" },
   { metric: "sensitivityPeak", label: "sensitivity peak Ms", unit: "", usualBound: "max" },
   { metric: "gainNorm", label: "gain norm ‖K‖_F", unit: "", usualBound: "max" },
+  { metric: "disturbancePeak", label: "|peak deviation| after the disturbance step", unit: "", usualBound: "max" },
+  { metric: "disturbanceSettlingTime", label: "settling time after the disturbance step", unit: "s", usualBound: "max" },
+  { metric: "disturbanceFinalValue", label: "|final value| after the disturbance step", unit: "", usualBound: "max" },
+  { metric: "nonlinearDivergence", label: "largest |nonlinear − linear| output difference", unit: "", usualBound: "max" },
+  { metric: "robustWorstPhaseMarginDeg", label: "worst phase margin over the robustness sweep", unit: "°", usualBound: "min" },
   { metric: "slowestPoleRealPart", label: "largest real part of the closed-loop poles", unit: "1/s", usualBound: "max" },
 ];
 
