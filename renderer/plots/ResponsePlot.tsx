@@ -120,7 +120,7 @@ export function ResponsePlot(props: ResponsePlotProps) {
             {key === "control" && model.limits.map((l, i) => (
               <g key={i} className="lw-limit">
                 <line className="lw-limit-line" x1={LEFT} x2={right} y1={l.y} y2={l.y} stroke={model.styles[l.seriesIndex]!.color} />
-                <text className="lw-limit-label" x={right - 4} y={l.y + (l.kind === "upper" ? -4 : 12)} textAnchor="end">{`${l.kind} limit ${fullPrecision(l.value)}`}</text>
+                <text className="lw-limit-label" x={right - 4} y={l.labelY} textAnchor="end">{`${l.kind} limit ${fullPrecision(l.value)}`}</text>
               </g>
             ))}
             {key === "outputs" && model.metrics.map((m) => (

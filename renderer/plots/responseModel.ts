@@ -77,7 +77,8 @@ export interface ResponseModel {
   width: number;
   outputs: ResponsePanel;
   control: ResponsePanel | null;
-  limits: { y: number; value: number; kind: "lower" | "upper"; seriesIndex: number }[];
+  /** labelY keeps the label inside the panel: beside its line, on the side with room. */
+  limits: { y: number; labelY: number; value: number; kind: "lower" | "upper"; seriesIndex: number }[];
   metrics: MetricMarks[];
   /** Metric annotations laid out inside the outputs panel without overlapping each other. */
   labels: MetricLabel[];
@@ -160,10 +161,20 @@ export function responseModel(input: ResponseModelInput): ResponseModel {
       axis: linearTicks(cDomain, [cTop + ctlH, cTop], Math.max(3, Math.round(ctlH / 40))),
       paths: series.flatMap((s, si) => (s.control ?? []).map((u, c) => ({ seriesIndex: si, channel: c, path: pathOf(s, u, cY), style: styles[si]!, dash: dashOf(s, styles[si]!) }))),
     };
+    // Label text sits 4 px above its line (or 12 px below, to its baseline); a label that would
+    // leave the panel goes to the other side of its line.
+    const LABEL_HEIGHT = 10;
+    const labelY = (y: number, kind: "lower" | "upper"): number => {
+      const above = y - 4;
+      const below = y + 12;
+      const preferAbove = kind === "upper";
+      if (preferAbove) return above - LABEL_HEIGHT >= cTop ? above : below;
+      return below <= cTop + ctlH ? below : above;
+    };
     series.forEach((s, si) => {
       const l = s.controlLimits;
-      if (isDrawable(l?.lower)) limits.push({ y: cY(l!.lower as number), value: l!.lower as number, kind: "lower", seriesIndex: si });
-      if (isDrawable(l?.upper)) limits.push({ y: cY(l!.upper as number), value: l!.upper as number, kind: "upper", seriesIndex: si });
+      if (isDrawable(l?.lower)) { const y = cY(l!.lower as number); limits.push({ y, labelY: labelY(y, "lower"), value: l!.lower as number, kind: "lower", seriesIndex: si }); }
+      if (isDrawable(l?.upper)) { const y = cY(l!.upper as number); limits.push({ y, labelY: labelY(y, "upper"), value: l!.upper as number, kind: "upper", seriesIndex: si }); }
     });
   }
 

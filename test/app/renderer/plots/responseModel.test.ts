@@ -158,3 +158,19 @@ describe("label placement", () => {
     expect(segmentHitsBox(15, 0, 15, 30, box)).toBe(true);
   });
 });
+
+describe("input limit labels", () => {
+  it("stay inside the control panel when the limits sit on its edges", () => {
+    const model = responseModel({
+      series: [{ name: "a", time: [0, 1, 2], output: [[0, 1, 1]], control: [[1, 120, 60]], controlLimits: { lower: 1, upper: 120 } }],
+      ...layout,
+    });
+    const top = model.control!.top;
+    const bottom = top + model.control!.height;
+    for (const l of model.limits) {
+      // Baseline within the panel and the ~10 px text above it too.
+      expect(l.labelY).toBeLessThanOrEqual(bottom);
+      expect(l.labelY - 10).toBeGreaterThanOrEqual(top);
+    }
+  });
+});
