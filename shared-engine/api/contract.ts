@@ -13,11 +13,13 @@ import type { DesignRunResult, VariantResult } from "../project/result";
 import type * as T from "./contractTypes";
 import type * as NL from "./nonlinearContractTypes";
 import type * as SV from "./servoContractTypes";
+import type * as SIM from "./simulationContractTypes";
 
 export type { PlantSpec, ProjectFile, RequirementSpec, SignOffSpec, VariantSpec, DesignRunResult, VariantResult };
 export type * from "./contractTypes";
 export type * from "./nonlinearContractTypes";
 export type * from "./servoContractTypes";
+export type * from "./simulationContractTypes";
 
 export interface ComplexNumber {
   re: number;
@@ -46,6 +48,14 @@ export interface EngineMethods {
     params: { plant: PlantSpec; variant: VariantSpec; requirements?: RequirementSpec[] };
     result: VariantResult;
   };
+  /**
+   * The lean pipeline behind a drag: gain, closed-loop poles, step and Bode only (no structure,
+   * zeros, margins or requirement checks); `preview: false` when the full pipeline had to run.
+   */
+  "project.previewVariant": {
+    params: { plant: PlantSpec; variant: VariantSpec };
+    result: VariantResult & { preview: boolean };
+  };
   /** Designs every variant (or one) of a whole project given as data. */
   "project.evaluate": {
     params: { project: unknown; variant?: string };
@@ -73,6 +83,10 @@ export interface EngineMethods {
   "analysis.margins": { params: T.MarginsParams; result: T.MarginsResult };
   /** Step response and its metrics per output. */
   "analysis.step": { params: T.StepParams; result: T.StepResult };
+  /** Response to a given input sequence u[k][j] (and optional disturbances, initial state). */
+  "analysis.simulate": { params: SIM.SimulateParams; result: SIM.SimulationResult };
+  /** Free response from an initial state x0 (no input). */
+  "analysis.initial": { params: SIM.InitialParams; result: SIM.SimulationResult };
   /** Root locus of a SISO loop (or one channel): branches, asymptotes, break points, crossings. */
   "analysis.rootLocus": { params: T.RootLocusParams; result: T.RootLocusResult };
   /** State-feedback gain K with eig(A − BK) at the requested poles. */
@@ -123,6 +137,7 @@ export const ENGINE_METHODS: readonly EngineMethod[] = [
   "linalg.eigenvalues",
   "project.load",
   "project.evaluateVariant",
+  "project.previewVariant",
   "project.evaluate",
   "model.fromTransferFunction",
   "model.fromZeroPoleGain",
@@ -135,6 +150,8 @@ export const ENGINE_METHODS: readonly EngineMethod[] = [
   "analysis.frequencyResponse",
   "analysis.margins",
   "analysis.step",
+  "analysis.simulate",
+  "analysis.initial",
   "analysis.rootLocus",
   "design.placePoles",
   "design.observerPoles",

@@ -6,7 +6,7 @@
 import { EngineError } from "../errors";
 import { eigenvalues } from "../linalg";
 import { ENGINE_VERSION } from "../version";
-import { evaluateProject, evaluateVariant, loadProjectText, loadProjectValue } from "../project";
+import { evaluateProject, evaluateVariant, loadProjectText, loadProjectValue, previewVariant } from "../project";
 import { ENGINE_METHODS, type EngineMethod, type EngineMethods, isEngineMethod } from "./contract";
 import { requireMatrixParam, requireObjectParams } from "./params";
 import { requireFiniteResult, withPositiveZeros, type RequestContext } from "./handlerSupport";
@@ -16,6 +16,7 @@ import { designHandlers } from "./handlers/designHandlers";
 import { servoDesignHandlers } from "./handlers/servoDesignHandlers";
 import { locusHandlers } from "./handlers/locusHandlers";
 import { nonlinearHandlers } from "./handlers/nonlinearHandlers";
+import { simulationHandlers } from "./handlers/simulationHandlers";
 
 export type { RequestContext } from "./handlerSupport";
 
@@ -54,6 +55,12 @@ const handlers: { [M in EngineMethod]: Handler<M> } = {
     const { project } = loaded;
     return evaluateVariant(project.plants[0]!, project.variants[0]!, { requirements: project.requirements });
   },
+  "project.previewVariant": (params) => {
+    const p = requireObjectParams(params, "project.previewVariant");
+    // Same validation as project.evaluateVariant, so a preview never accepts what a full run refuses.
+    const { project } = loadProjectValue({ format: "loopwright-project", version: 1, name: "request", plants: [p.plant], variants: [p.variant] });
+    return previewVariant(project.plants[0]!, project.variants[0]!);
+  },
   "project.evaluate": (params) => {
     const p = requireObjectParams(params, "project.evaluate");
     if (p.variant !== undefined && typeof p.variant !== "string") throw new EngineError("invalid-argument", "project.evaluate: variant must be a variant id", { field: "variant" });
@@ -65,6 +72,7 @@ const handlers: { [M in EngineMethod]: Handler<M> } = {
   ...servoDesignHandlers,
   ...locusHandlers,
   ...nonlinearHandlers,
+  ...simulationHandlers,
 };
 
 /** Methods whose results are checked for NaN/Infinity before they cross the bridge. */
@@ -75,6 +83,7 @@ const FINITE_CHECKED: ReadonlySet<string> = new Set([
   ...Object.keys(servoDesignHandlers),
   ...Object.keys(locusHandlers),
   ...Object.keys(nonlinearHandlers),
+  ...Object.keys(simulationHandlers),
 ]);
 
 export const NO_CONTEXT: RequestContext = { isCancelled: () => false, reportProgress: () => undefined };

@@ -5,7 +5,7 @@ export const WORKSPACE_SHORTCUTS: readonly { keys: string; action: string }[] = 
   { keys: "?", action: "Open or close this list of shortcuts" },
   { keys: "Ctrl+Z", action: "Undo the last change (the button shows what it undoes)" },
   { keys: "Ctrl+Shift+Z or Ctrl+Y", action: "Redo" },
-  { keys: "Alt+1 … Alt+6", action: "Go to the tabs Plant, Structure, Design, Equations, Locus, Check" },
+  { keys: "Alt+1 … Alt+7", action: "Go to the tabs Plant, Structure, Design, Equations, Locus, Check, Responses" },
   { keys: "← / → on a tab", action: "Move to the previous or next tab" },
   { keys: "Tab / Shift+Tab", action: "Move between fields, buttons and plot marks" },
   { keys: "Enter in a field", action: "Apply the typed value (a value that does not parse stays, marked, with its message)" },

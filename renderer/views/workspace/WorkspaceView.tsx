@@ -18,6 +18,8 @@ import { MetricsStrip } from "./MetricsStrip";
 import { PlantEditor } from "./PlantEditor";
 import { ResultPlots } from "./ResultPlots";
 import { StructurePanel } from "./StructurePanel";
+import { StructureDetails } from "./StructureDetails";
+import { ResponsesPanel } from "./ResponsesPanel";
 import { LocusPanel } from "./LocusPanel";
 import { NonlinearCheckPanel } from "./NonlinearCheckPanel";
 import { NonlinearEditor } from "./NonlinearEditor";
@@ -35,7 +37,7 @@ interface Props {
   initialDocument?: ProjectFile;
 }
 
-type Tab = "plant" | "structure" | "design" | "equations" | "locus" | "check";
+type Tab = "plant" | "structure" | "design" | "equations" | "locus" | "check" | "responses";
 const TABS: { id: Tab; label: string; key: string }[] = [
   { id: "plant", label: "Plant", key: "1" },
   { id: "structure", label: "Structure", key: "2" },
@@ -43,6 +45,7 @@ const TABS: { id: Tab; label: string; key: string }[] = [
   { id: "equations", label: "Equations", key: "4" },
   { id: "locus", label: "Locus", key: "5" },
   { id: "check", label: "Check", key: "6" },
+  { id: "responses", label: "Responses", key: "7" },
 ];
 
 /** Owns one workspace store for the open project; flushes pending saves when the screen closes. */
@@ -61,6 +64,14 @@ export function WorkspaceView(props: Props) {
           performance.measure?.("lw:engine", { start: performance.now() - durationMs, duration: durationMs, detail: { kind } });
           performance.mark?.("lw:result");
           requestAnimationFrame(() => requestAnimationFrame(() => performance.measure?.("lw:frame", "lw:result")));
+          // lw:paint: to just after the frame that shows the result is painted (a message posted
+          // from its animation frame runs after that paint); lw:frame above also waits a whole
+          // extra frame interval, so it is never below ~16.7 ms.
+          requestAnimationFrame(() => {
+            const channel = new MessageChannel();
+            channel.port1.onmessage = () => performance.measure?.("lw:paint", "lw:result");
+            channel.port2.postMessage(null);
+          });
         },
       }),
     [projectId, documents, bridge],
@@ -79,7 +90,7 @@ function Workspace({ store, projectName, onClose, bridge }: Props & { store: Wor
   const state = useWorkspaceState(store);
   const [tab, setTab] = useState<Tab>("design");
   const [editedPlantId, setEditedPlantId] = useState<string | null>(null);
-  const tabRefs = useRef<Record<Tab, HTMLButtonElement | null>>({ plant: null, structure: null, design: null, equations: null, locus: null, check: null });
+  const tabRefs = useRef<Record<Tab, HTMLButtonElement | null>>({ plant: null, structure: null, design: null, equations: null, locus: null, check: null, responses: null });
   const plotBox = useRef<HTMLDivElement>(null);
   const [plotWidth, setPlotWidth] = useState(720);
 
@@ -279,7 +290,13 @@ function Workspace({ store, projectName, onClose, bridge }: Props & { store: Wor
                 <PlantEditor store={store} state={state} plant={editedPlant} />
               </>
             )}
-            {tab === "structure" && <StructurePanel plant={result?.plant} />}
+            {tab === "structure" && (
+              <>
+                <StructurePanel plant={result?.plant} />
+                <StructureDetails bridge={bridge} plant={plant} result={result} />
+              </>
+            )}
+            {tab === "responses" && (variant ? <ResponsesPanel bridge={bridge} plant={plant} variant={variant} result={result} styleIndex={styleIndex} width={520} /> : <p className="muted">Add a design variant first.</p>)}
             {tab === "equations" && (() => {
               const nonlinearPlants = doc.plants.filter((p) => p.model.type === "nonlinear");
               const shown = editedPlant.model.type === "nonlinear" ? editedPlant : nonlinearPlants[0];
