@@ -198,6 +198,19 @@ function run(plantSpec: PlantSpec, variant: VariantSpec, options: EvaluateOption
     result.warnings.push(...assembled.warnings);
   }
 
+  if (servoLoop) {
+    result.closedLoop = {
+      A: rows(servoLoop.A), B: rows(servoLoop.B), C: rows(servoLoop.C), D: rows(servoLoop.D), F: rows(servoLoop.F), E: rows(servoLoop.E),
+      sampleTime: servoLoop.sampleTime,
+      names: {
+        states: [...servoLoop.names.states],
+        inputs: [...servoLoop.names.inputs],
+        outputs: [...servoLoop.names.outputs],
+        disturbances: [...servoLoop.names.disturbances],
+      },
+    };
+  }
+
   // ---- Bode ------------------------------------------------------------------------------------
   const inputLoop = compensatorLoop ?? (feedback ? loopAtInput(feedback.loopA, feedback.loopB, feedback.loopK, 0, T) : null);
   if (variant.bode) {

@@ -70,6 +70,16 @@ export interface VariantResult {
     /** Current-estimate observer gain for sampled Kalman designs (n×p). */
     M?: number[][];
   };
+  /**
+   * The designed closed loop as a model (with integrators and the observer when present):
+   * inputs are the references, outputs the plant outputs followed by the control inputs,
+   * disturbances those of the plant. What the workbench simulates for any other scenario.
+   */
+  closedLoop?: {
+    A: number[][]; B: number[][]; C: number[][]; D: number[][]; F: number[][]; E: number[][];
+    sampleTime: number | null;
+    names: { states: string[]; inputs: string[]; outputs: string[]; disturbances: string[] };
+  };
   /** Poles of the state-feedback loop (with integrators when present). */
   closedLoopPoles?: ComplexJson[];
   observerPoles?: ComplexJson[];

@@ -97,6 +97,23 @@ export function responseModelOf(plant: PlantSpec | undefined, variant: VariantSp
       notes: ["Open loop: the plant alone, no feedback."],
     };
   }
+  // The design run's own closed loop (with its integrators and observer) when it has one.
+  const cl = result?.closedLoop;
+  if (cl && cl.C.length === p.C.length + m) {
+    if (variant.integralAction) notes.push("The loop includes the design's integrators; the references drive the integrated outputs.");
+    if (variant.observer) notes.push("The loop includes the design's observer: the controller sees only the measured outputs.");
+    if (result?.gain?.referenceGain) notes.push("The reference enters through the design's feedforward gain N.");
+    return {
+      model: { A: cl.A, B: cl.B, C: cl.C, D: cl.D, F: cl.F, E: cl.E, sampleTime: cl.sampleTime, names: { ...cl.names } },
+      plantOutputs: p.C.length,
+      outputNames,
+      inputNames,
+      stateNames: [...cl.names.states],
+      disturbanceNames: [...cl.names.disturbances],
+      sampleTime: cl.sampleTime,
+      notes,
+    };
+  }
   const K = result?.gain?.K;
   if (!K || K.length !== m || (K[0]?.length ?? 0) !== n) throw new Error("The closed loop needs the design's state-feedback gain K; wait for the design to finish.");
   const N = result?.gain?.referenceGain && result.gain.referenceGain.length === m ? result.gain.referenceGain : Array.from({ length: m }, (_, i) => Array.from({ length: m }, (_, j) => (i === j ? 1 : 0)));

@@ -145,7 +145,7 @@ describe("responses controller with the in-process dispatcher", () => {
 });
 
 describe("on the demo project (headless store)", () => {
-  it("simulates a pasted CSV on the sampled baseline design, matching one step of the discrete closed loop by hand", async () => {
+  it("simulates a pasted CSV on the sampled baseline design, matching two steps of the discrete closed loop (with its accumulator) by hand", async () => {
     const bridge = inProcessBridge();
     const store = await openDemoStore(bridge, "lqr-integral-1s");
     const state = store.getState();
@@ -160,14 +160,18 @@ describe("on the demo project (headless store)", () => {
     await c.sequence(rm, "closed-loop", sequence(text, 1, T));
     const d = c.getState().data!;
     expect(d.time).toHaveLength(6);
-    // One step by hand from x0 = 0 with r0 = 2: x1 = B·N·2, y1 = C x1 (D = 0 in the queue model).
+    // Two steps by hand from rest with r = 2 (the loop now includes the design's accumulator
+    // xi[k+1] = xi[k] + T(r − y), u = −Kx x − Ki xi, D = 0 in the queue model):
+    // y[1] = 0 (u[0] = 0), xi[1] = 2T, u[1] = −Ki·2T, x[2] = B·u[1], y[2] = C·x[2].
     const { B, C } = result.discrete!;
-    const N = result.gain?.referenceGain?.[0]?.[0] ?? 1;
-    const x1 = B.map((row) => row[0]! * N * 2);
-    const y1 = C[0]!.reduce((s, c, i) => s + c * x1[i]!, 0);
+    const Ki = result.gain!.Ki![0]![0]!;
+    const u1 = -Ki * 2 * T;
+    const x2 = B.map((row) => row[0]! * u1);
+    const y2 = C[0]!.reduce((s, c, i) => s + c * x2[i]!, 0);
     expect(d.output[0]![0]).toBe(0);
-    expect(Math.abs(d.output[0]![1]! - y1)).toBeLessThanOrEqual(1e-12 * Math.max(1, Math.abs(y1)));
-    expect(rm.notes.join(" ")).toMatch(/integrators of this design are left out/);
+    expect(Math.abs(d.output[0]![1]!)).toBeLessThanOrEqual(1e-12);
+    expect(Math.abs(d.output[0]![2]! - y2)).toBeLessThanOrEqual(1e-12 * Math.max(1, Math.abs(y2)));
+    expect(rm.notes.join(" ")).toMatch(/includes the design's integrators/);
     store.dispose();
   }, 30_000);
 
