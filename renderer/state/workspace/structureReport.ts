@@ -21,7 +21,7 @@ import type {
 import { formatComplex, formatReal } from "../../../shared-engine/format";
 
 // WARNING: these thresholds decide the sentences the engineer reads; tests pin them.
-/** ‖A − diag A‖_F / ‖A‖_F above this: "strongly coupled" (half the energy of A off the diagonal, our convention). */
+/** ‖A − diag A‖_F / ‖A‖_F above this: the states "drive one another strongly" (half the energy of A off the diagonal, our convention). */
 export const STRONG_COUPLING_RATIO = 0.5;
 /** Below this (and above 0): "nearly decoupled" (common practice: off-diagonal terms under 10 %). */
 export const WEAK_COUPLING_RATIO = 0.1;
@@ -141,13 +141,29 @@ export function zerosSentence(zeros: readonly ZeroLine[], infiniteCount: number 
   return `Non-minimum phase: the zero(s) ${nmp.map((z) => z.label).join(", ")} lie ${where}. The response to a step first moves the wrong way, and no feedback can move these zeros; they limit how fast the loop can be.`;
 }
 
-export function couplingSentence(ratio: number): string {
+/**
+ * Two different questions, answered separately: how much the states drive one another (the
+ * off-diagonal share of A, which depends on the states' units) and whether the modes are shared
+ * between states (from the participation factors, which do not). A triangular A can be "strongly
+ * coupled" by the first measure while every mode still belongs to one state.
+ */
+export function couplingSentence(ratio: number, largestSharedParticipation?: number): string {
   const pct = `${formatReal(100 * ratio, 3)} %`;
-  if (ratio === 0) return "A is diagonal: the states are decoupled, each mode belongs to one state.";
-  if (ratio > STRONG_COUPLING_RATIO) return `The states are strongly coupled: ${pct} of A (Frobenius norm) lies off its diagonal, so each state moves with several modes.`;
-  if (ratio < WEAK_COUPLING_RATIO) return `The states are nearly decoupled: only ${pct} of A (Frobenius norm) lies off its diagonal.`;
-  return `The states are moderately coupled: ${pct} of A (Frobenius norm) lies off its diagonal.`;
+  let first: string;
+  if (ratio === 0) first = "A is diagonal: no state drives another.";
+  else if (ratio > STRONG_COUPLING_RATIO) first = `The states drive one another strongly: ${pct} of A (Frobenius norm, in the states' own units) lies off its diagonal.`;
+  else if (ratio < WEAK_COUPLING_RATIO) first = `The states barely drive one another: only ${pct} of A (Frobenius norm, in the states' own units) lies off its diagonal.`;
+  else first = `The states drive one another moderately: ${pct} of A (Frobenius norm, in the states' own units) lies off its diagonal.`;
+  if (largestSharedParticipation === undefined) return first;
+  const second =
+    largestSharedParticipation < SHARED_MODE_FRACTION
+      ? "Each mode belongs mainly to one state (every mode has one state with most of its participation)."
+      : `Some modes are shared between states (a mode's second state holds up to ${formatReal(100 * largestSharedParticipation, 3)} % of its participation), so a change in one state shows up in several modes.`;
+  return `${first} ${second}`;
 }
+
+/** A mode counts as shared when its second-largest participation exceeds this fraction. */
+export const SHARED_MODE_FRACTION = 0.2;
 
 export function couplingTable(modal: ModalFormResult): CouplingTable {
   const c = modal.coupling;
@@ -155,7 +171,10 @@ export function couplingTable(modal: ModalFormResult): CouplingTable {
     states: [...c.states],
     rows: c.modes.map((m) => ({ label: complexLabel(m.eigenvalue).replace(/ [+−] /, " ± "), participationPct: m.participation.map((p) => 100 * p), dominantStates: [...m.dominantStates] })),
     offDiagonalRatio: c.offDiagonalRatio,
-    sentence: couplingSentence(c.offDiagonalRatio),
+    sentence: couplingSentence(
+      c.offDiagonalRatio,
+      Math.max(0, ...c.modes.map((m) => [...m.participation].sort((a, b) => b - a)[1] ?? 0)),
+    ),
     conditionWarning:
       modal.condition > MODAL_CONDITION_LIMIT
         ? `κ(T) = ${formatReal(modal.condition, 3)}: the modal basis is nearly singular (modes close together), so the participation factors are unreliable.`

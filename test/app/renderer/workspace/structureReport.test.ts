@@ -5,6 +5,7 @@ import { describe, expect, it } from "vitest";
 import type { GramiansResult } from "../../../../shared-engine/api/contract";
 import {
   couplingSentence,
+  SHARED_MODE_FRACTION,
   createStructureController,
   describeMode,
   gramianSummary,
@@ -68,11 +69,20 @@ describe("wording thresholds", () => {
 
   it("words the off-diagonal ratio of A by the documented thresholds", () => {
     expect([STRONG_COUPLING_RATIO, WEAK_COUPLING_RATIO]).toEqual([0.5, 0.1]);
-    expect(couplingSentence(0)).toMatch(/^A is diagonal: the states are decoupled/);
-    expect(couplingSentence(0.05)).toMatch(/^The states are nearly decoupled: only 5 %/);
-    expect(couplingSentence(0.1)).toMatch(/^The states are moderately coupled/);
-    expect(couplingSentence(0.5)).toMatch(/^The states are moderately coupled/);
-    expect(couplingSentence(0.51)).toMatch(/^The states are strongly coupled: 51 %/);
+    expect(couplingSentence(0)).toMatch(/^A is diagonal: no state drives another/);
+    expect(couplingSentence(0.05)).toMatch(/^The states barely drive one another: only 5 %/);
+    expect(couplingSentence(0.1)).toMatch(/^The states drive one another moderately/);
+    expect(couplingSentence(0.5)).toMatch(/^The states drive one another moderately/);
+    expect(couplingSentence(0.51)).toMatch(/^The states drive one another strongly: 51 %/);
+  });
+
+  it("does not call modes shared when each belongs to one state, however large A's off-diagonal part", () => {
+    // A triangular A such as the demo queue's [[−1/30, −50], [0, −0.05]]: the off-diagonal part
+    // dominates A, yet each mode's participation sits in one state (eigenvectors of a triangular
+    // matrix with distinct eigenvalues; participation 100 % / 0 %, worked by hand).
+    expect(couplingSentence(0.9999, 0)).toMatch(/strongly.*Each mode belongs mainly to one state/);
+    expect(couplingSentence(0.3, 0.45)).toMatch(/Some modes are shared between states .*45 %/);
+    expect(SHARED_MODE_FRACTION).toBe(0.2);
   });
 
   it("counts Hankel singular values below 1e-3 of the largest as weak and names weakly controllable states", () => {
@@ -97,7 +107,7 @@ describe("wording thresholds", () => {
 describe("structure controller through the in-process bridge", () => {
   const queue = DEMO_DOCUMENT.plants.find((p) => p.id === "queue-linear")!;
 
-  it("describes the demo's linear queue: two stable real modes, strongly coupled through A[0][1] = −50, with Hankel values", async () => {
+  it("describes the demo's linear queue: two stable real modes, states driven strongly through A[0][1] = −50 yet modes unshared, with Hankel values", async () => {
     const source = structureModelOf(queue, null);
     if (!("model" in source)) throw new Error(source.reason);
     const c = createStructureController(inProcessBridge());
@@ -108,7 +118,7 @@ describe("structure controller through the in-process bridge", () => {
     expect(r.modes.map((m) => m.eigenvalue.re).sort((a, b) => a - b)).toEqual([-0.05, -1 / 30].map((v) => expect.closeTo(v, 12)));
     expect(r.modes.every((m) => m.controllable && m.observable)).toBe(true);
     expect(r.coupling!.states).toEqual(["backlog", "consumers"]);
-    expect(r.coupling!.sentence).toMatch(/strongly coupled/);
+    expect(r.coupling!.sentence).toMatch(/drive one another strongly.*Each mode belongs mainly to one state/);
     expect(r.coupling!.rows).toHaveLength(2);
     r.coupling!.rows.forEach((row) => expectRelativeClose(row.participationPct.reduce((a, b) => a + b, 0), 100, 1e-12, "participation sum"));
     expect(r.gramians!.hankelSingularValues).toHaveLength(2);
