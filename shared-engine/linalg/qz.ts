@@ -9,8 +9,15 @@ import type { Complex } from "./complex";
 import { asMatrix, requireSquareFinite, shapeOf, type MatrixInput } from "./validate";
 import { iterate } from "./qzIteration";
 import {
-  ULP, type PencilWork, eigenvaluesOfForm, frobeniusNorm, givens, loadPencil, matrixFromRowMajor, rot, rotCols, rotRows,
+  ULP, type PencilWork, eigenvaluesOfForm, frobeniusNorm, givens as givensShared, loadPencil, matrixFromRowMajor, rot as rotShared, rotRows as rotRowsShared,
 } from "./qzKernels";
+
+// Module-level aliases of the shared scratch arrays and hot kernels: read through an import
+// binding, every access in the inner loops cost a getter call under per-file CommonJS transpilation (tsx, vitest).
+const rot = rotShared;
+const givens = givensShared;
+const rotRows = rotRowsShared;
+
 
 export { reorderQz } from "./qzReorder";
 
@@ -220,12 +227,30 @@ function reduceToHessenbergTriangular(w: PencilWork & { scratch: Float64Array })
   // T[i][i−1] that a right rotation (columns i, i−1) removes. Right rotations never touch
   // column j of S, so the left ones do not depend on them: S's right rotations are stored and
   // applied afterwards row by row, on contiguous memory (associativity of L·S·R).
+  // T's right rotations are deferred the same way, row by row: a row of T needs the pending
+  // ones only just before a left rotation first mixes it with the row below (which already
+  // has them), so row i−1 is brought up to date then, in one contiguous pass; rows 0..j, never
+  // touched from the left, get them all at the end with S. Every entry sees the same
+  // operations in the same order as with column rotations applied at once (bit-identical),
+  // without the stride-n column walks through T.
+  // Two neighbouring steps (i and i−1) are fused where their left rotations act on the same
+  // data (S's rows, T's far columns, Qᵀ's and Zᵀ's rows): one pass over three rows instead of
+  // two passes over two, the fusion of the bulge chase in schur.ts. Per entry the operations
+  // and their order are unchanged, so the result is bit-identical.
   const cs = v, sn = acc;
   for (let j = 0; j < n - 2; j++) {
-    for (let i = n - 1; i >= j + 2; i--) {
+    let i = n - 1;
+    while (i >= j + 2) {
+      if (i - 1 >= j + 2 && S[i * n + j] !== 0) {
+        hessenbergTriangularPair(w, j, i, cs, sn);
+        i -= 2;
+        continue;
+      }
+      catchUpRow(T, n, i - 1, i + 1, cs, sn);
       const g = S[i * n + j];
       if (g === 0) {
         cs[i] = 1; sn[i] = 0;
+        i--;
         continue;
       }
       givens(S[(i - 1) * n + j], g);
@@ -236,12 +261,18 @@ function reduceToHessenbergTriangular(w: PencilWork & { scratch: Float64Array })
       rotRowsOfBoth(S, T, n, i - 1, c, s, i - 1);
       givens(T[i * n + i], T[i * n + i - 1]);
       const c2 = rot[0], s2 = rot[1];
-      rotCols(T, n, i, i - 1, c2, s2, 0, i);
+      // The right rotation on rows i−1 and i now; rows above get it in their catch-up pass.
+      const up = (i - 1) * n;
+      const x = T[up + i], y = T[up + i - 1];
+      T[up + i] = c2 * x + s2 * y;
+      T[up + i - 1] = c2 * y - s2 * x;
       T[i * n + i] = rot[2];
       T[i * n + i - 1] = 0;
       cs[i] = c2; sn[i] = s2;
       if (QT && ZT) rotateAccumulators(QT, ZT, n, i - 1, c, s, c2, s2);
+      i--;
     }
+    for (let r = 0; r <= j; r++) catchUpRow(T, n, r, j + 2, cs, sn);
     for (let r = 0, o = 0; r < n; r++, o += n) {
       let xi = S[o + n - 1];
       for (let i = n - 1; i >= j + 2; i--) {
@@ -252,6 +283,114 @@ function reduceToHessenbergTriangular(w: PencilWork & { scratch: Float64Array })
       S[o + j + 1] = xi;
     }
   }
+}
+
+/**
+ * Steps i and i−1 of column j of the Hessenberg–triangular reduction (S[i][j] ≠ 0, i − 1 ≥ j + 2):
+ * left rotations L_i (rows i−1, i) and L_{i−1} (rows i−2, i−1) zeroing S[i][j] and S[i−1][j],
+ * right rotations R_i, R_{i−1} removing their fills in T. The near entries of T (columns
+ * i−2..i) are updated step by step, because R_i needs T after L_i; everything else sees L_i
+ * then L_{i−1} (or R_i then R_{i−1}) in one pass over three rows.
+ */
+function hessenbergTriangularPair(w: PencilWork, j: number, i: number, cs: Float64Array, sn: Float64Array): void {
+  const { n, S, T, QT, ZT } = w;
+  const oa = (i - 2) * n, ob = oa + n, oc = ob + n;
+  catchUpRow(T, n, i - 1, i + 1, cs, sn);
+  // Both left rotations come from column j of S alone.
+  givens(S[ob + j], S[oc + j]);
+  const c1 = rot[0], s1 = rot[1];
+  S[ob + j] = rot[2];
+  S[oc + j] = 0;
+  givens(S[oa + j], S[ob + j]);
+  const c0 = rot[0], s0 = rot[1];
+  S[oa + j] = rot[2];
+  S[ob + j] = 0;
+  // Step i on T's near columns i−1, i: L_i, then R_i from the fill T[i][i−1].
+  for (let k = i - 1; k <= i; k++) {
+    const x = T[ob + k], y = T[oc + k];
+    T[ob + k] = c1 * x + s1 * y;
+    T[oc + k] = c1 * y - s1 * x;
+  }
+  givens(T[oc + i], T[oc + i - 1]);
+  const c2 = rot[0], s2 = rot[1];
+  {
+    const x = T[ob + i], y = T[ob + i - 1];
+    T[ob + i] = c2 * x + s2 * y;
+    T[ob + i - 1] = c2 * y - s2 * x;
+  }
+  T[oc + i] = rot[2];
+  T[oc + i - 1] = 0;
+  cs[i] = c2; sn[i] = s2;
+  // Step i−1: row i−2 takes the pending right rotations (through R_i), then L_{i−1} on the
+  // near columns i−2..i and R_{i−1} from the fill T[i−1][i−2].
+  catchUpRow(T, n, i - 2, i, cs, sn);
+  for (let k = i - 2; k <= i; k++) {
+    const x = T[oa + k], y = T[ob + k];
+    T[oa + k] = c0 * x + s0 * y;
+    T[ob + k] = c0 * y - s0 * x;
+  }
+  givens(T[ob + i - 1], T[ob + i - 2]);
+  const c3 = rot[0], s3 = rot[1];
+  {
+    const x = T[oa + i - 1], y = T[oa + i - 2];
+    T[oa + i - 1] = c3 * x + s3 * y;
+    T[oa + i - 2] = c3 * y - s3 * x;
+  }
+  T[ob + i - 1] = rot[2];
+  T[ob + i - 2] = 0;
+  cs[i - 1] = c3; sn[i - 1] = s3;
+  // Far columns: L_i on rows (i−1, i), then L_{i−1} on rows (i−2, i−1); S from column j+1, T
+  // from column i+1.
+  for (let k = j + 1; k <= i; k++) {
+    const xa = S[oa + k], xb = S[ob + k], xc = S[oc + k];
+    const yb = c1 * xb + s1 * xc;
+    S[oc + k] = c1 * xc - s1 * xb;
+    S[oa + k] = c0 * xa + s0 * yb;
+    S[ob + k] = c0 * yb - s0 * xa;
+  }
+  for (let k = i + 1; k < n; k++) {
+    let xa = S[oa + k], xb = S[ob + k], xc = S[oc + k];
+    let yb = c1 * xb + s1 * xc;
+    S[oc + k] = c1 * xc - s1 * xb;
+    S[oa + k] = c0 * xa + s0 * yb;
+    S[ob + k] = c0 * yb - s0 * xa;
+    xa = T[oa + k]; xb = T[ob + k]; xc = T[oc + k];
+    yb = c1 * xb + s1 * xc;
+    T[oc + k] = c1 * xc - s1 * xb;
+    T[oa + k] = c0 * xa + s0 * yb;
+    T[ob + k] = c0 * yb - s0 * xa;
+  }
+  if (QT && ZT) {
+    // Qᵀ rows: L_i then L_{i−1}. Zᵀ rows: R_i on (i, i−1), then R_{i−1} on (i−1, i−2).
+    for (let k = 0; k < n; k++) {
+      const xa = QT[oa + k], xb = QT[ob + k], xc = QT[oc + k];
+      const yb = c1 * xb + s1 * xc;
+      QT[oc + k] = c1 * xc - s1 * xb;
+      QT[oa + k] = c0 * xa + s0 * yb;
+      QT[ob + k] = c0 * yb - s0 * xa;
+      const za = ZT[oa + k], zb = ZT[ob + k], zc = ZT[oc + k];
+      const ub = c2 * zb - s2 * zc;
+      ZT[oc + k] = c2 * zc + s2 * zb;
+      ZT[ob + k] = c3 * ub + s3 * za;
+      ZT[oa + k] = c3 * za - s3 * ub;
+    }
+  }
+}
+
+/**
+ * Row r of M ← row r · R_{n−1} ·…· R_{last}, where R_i is the stored right rotation (cs[i], sn[i])
+ * on columns (i, i−1) (the convention of rotCols), applied from the right end as one carried pass.
+ */
+function catchUpRow(M: Float64Array, n: number, r: number, last: number, cs: Float64Array, sn: Float64Array): void {
+  if (last > n - 1) return;
+  const o = r * n;
+  let xi = M[o + n - 1];
+  for (let i = n - 1; i >= last; i--) {
+    const c = cs[i], s = sn[i], y = M[o + i - 1];
+    M[o + i] = c * xi + s * y;
+    xi = c * y - s * xi;
+  }
+  M[o + last - 1] = xi;
 }
 
 /** Rotation (c, s) of rows r, r+1 of S and of T on columns [c0, n), in one loop. */

@@ -5,8 +5,18 @@
  */
 import { EngineError } from "../errors";
 import {
-  SAFE_MIN, ULP, type PencilWork, givens, house3, negateRow, refl, rot, rotCols, rotRows, standardizeBlock2,
+  SAFE_MIN, ULP, type PencilWork, givens as givensShared, house3 as house3Shared, negateRow, refl as reflShared, rot as rotShared, rotCols as rotColsShared, rotRows as rotRowsShared, standardizeBlock2,
 } from "./qzKernels";
+
+// Module-level aliases of the shared scratch arrays and hot kernels: read through an import
+// binding, every access in the inner loops cost a getter call under per-file CommonJS transpilation (tsx, vitest).
+const rot = rotShared;
+const givens = givensShared;
+const house3 = house3Shared;
+const rotRows = rotRowsShared;
+const rotCols = rotColsShared;
+const refl = reflShared;
+
 
 /**
  * The QZ iteration on a Hessenberg–triangular pencil (Moler & Stewart 1973, step 3), with

@@ -77,6 +77,7 @@ export function reorderQz(
     if (blockSize(i) === 2) flags[i + 1] = flags[i]!;
   }
 
+  const scratch = makeSwapScratch();
   let ks = 0; // positions [0, ks) hold selected blocks in their final place
   let i = 0;
   while (i < n) {
@@ -90,7 +91,7 @@ export function reorderQz(
     while (pos > ks) {
       const above = pos - 2 >= ks && w.S[(pos - 1) * n + pos - 2] !== 0 ? 2 : 1;
       const start = pos - above;
-      swapAdjacentBlocks(w, start, above, sz, n * ULP * bnorm);
+      swapAdjacentBlocks(w, start, above, sz, n * ULP * bnorm, scratch);
       for (let k = start; k < start + sz; k++) flags[k] = 1;
       for (let k = start + sz; k < start + sz + above; k++) flags[k] = 0;
       pos = start;
@@ -145,40 +146,64 @@ function checkForm(form: GeneralizedSchurForm): number {
   return n;
 }
 
+/** Scratch reused by every swap of one reordering (windows are at most 4×4, Kronecker systems 8×8). */
+interface SwapScratch {
+  a: Float64Array; b: Float64Array; // window copies (m×m)
+  K: Float64Array; rhs: Float64Array; x: Float64Array; y: Float64Array; colPerm: Int32Array; // Kronecker solve
+  X: Float64Array; Qs: Float64Array; Zs: Float64Array; v: Float64Array; // orthogonal factors of the swap
+  an: Float64Array; bn: Float64Array; tmp: Float64Array; diff: Float64Array; // stability tests
+}
+
+// A reordering makes O(n²) swaps on windows of at most 4×4; allocating their small arrays anew
+// each time cost more than the arithmetic, so one scratch set serves a whole reordering.
+function makeSwapScratch(): SwapScratch {
+  return {
+    a: new Float64Array(16), b: new Float64Array(16),
+    K: new Float64Array(64), rhs: new Float64Array(8), x: new Float64Array(8), y: new Float64Array(8), colPerm: new Int32Array(8),
+    X: new Float64Array(8), Qs: new Float64Array(16), Zs: new Float64Array(16), v: new Float64Array(4),
+    an: new Float64Array(16), bn: new Float64Array(16), tmp: new Float64Array(16), diff: new Float64Array(16),
+  };
+}
+
 /**
  * Swaps the p×p block at rows/columns j.. with the q×q block below it (Kågström 1993).
  * Throws "singular" when the swap would not be backward stable.
  */
-function swapAdjacentBlocks(w: PencilWork, j: number, p: number, q: number, infiniteTol: number): void {
+function swapAdjacentBlocks(w: PencilWork, j: number, p: number, q: number, infiniteTol: number, sc: SwapScratch): void {
   const { n, S, T } = w;
   // An infinite eigenvalue (1×1 block with beta ≈ 0) stays infinite under exact swaps; rounding
   // leaves beta at noise level, possibly above the reporting threshold, so it is reset below.
   const firstInfinite = p === 1 && Math.abs(T[j * n + j]) <= infiniteTol;
   const secondInfinite = q === 1 && Math.abs(T[(j + p) * n + j + p]) <= infiniteTol;
-  const m = p + q;
-  const a = new Float64Array(m * m), b = new Float64Array(m * m);
+  const m = p + q, mm = m * m;
+  const { a, b, Qs, Zs, an, bn } = sc;
   for (let r = 0; r < m; r++) {
     for (let c = 0; c < m; c++) {
       a[r * m + c] = S[(j + r) * n + j + c];
       b[r * m + c] = T[(j + r) * n + j + c];
     }
   }
-  const normA = frobeniusNorm(a), normB = frobeniusNorm(b);
+  const normA = frobeniusNorm(a.subarray(0, mm)), normB = frobeniusNorm(b.subarray(0, mm));
   // Stability tolerance of the swap: Kågström & Poromaa use 10–20·ε·‖window‖; 100 leaves
   // room for the unscaled Kronecker solve while still bounding the perturbation locally.
   const tolA = Math.max(100 * ULP * normA, SAFE_MIN), tolB = Math.max(100 * ULP * normB, SAFE_MIN);
 
-  const { R, L } = solveBlockSylvester(a, b, p, q);
-  const Qs = completeOrthogonal(stackWithIdentity(L, p, q), m, q);
-  const Zs = completeOrthogonal(stackWithIdentity(R, p, q), m, q);
+  // x = [vec R; vec L] (row-major p×q each).
+  const x = solveBlockSylvester(a, b, p, q, sc);
+  const pq = p * q;
+  stackWithIdentity(x, pq, p, q, sc.X);
+  completeOrthogonal(sc.X, m, q, Qs, sc.v);
+  stackWithIdentity(x, 0, p, q, sc.X);
+  completeOrthogonal(sc.X, m, q, Zs, sc.v);
 
   // Stability tests on the small window (weak: the new (2,1) blocks are small; strong: the
   // window is reproduced with those blocks zeroed).
-  const an = similarity(Qs, a, Zs, m), bn = similarity(Qs, b, Zs, m);
+  similarity(Qs, a, Zs, m, an, sc.tmp);
+  similarity(Qs, b, Zs, m, bn, sc.tmp);
   const weak = Math.max(lowerBlockNorm(an, m, q) / tolA, lowerBlockNorm(bn, m, q) / tolB);
   zeroLowerBlock(an, m, q);
   zeroLowerBlock(bn, m, q);
-  const strong = Math.max(reconstructionError(Qs, an, Zs, a, m) / tolA, reconstructionError(Qs, bn, Zs, b, m) / tolB);
+  const strong = Math.max(reconstructionError(Qs, an, Zs, a, m, sc) / tolA, reconstructionError(Qs, bn, Zs, b, m, sc) / tolB);
   if (!(weak <= 1 && strong <= 1)) {
     throw new EngineError(
       "singular",
@@ -203,40 +228,40 @@ function swapAdjacentBlocks(w: PencilWork, j: number, p: number, q: number, infi
   if (secondInfinite && Math.abs(T[j * n + j]) <= 10 * infiniteTol) T[j * n + j] = 0;
   if (firstInfinite && Math.abs(T[(j + q) * n + j + q]) <= 10 * infiniteTol) T[(j + q) * n + j + q] = 0;
   // Re-standardise: 2×2 blocks get T diagonal and positive; 1×1 blocks get T[j][j] ≥ 0.
-  for (const [start, size] of [[j, q], [j + q, p]] as const) {
-    if (size === 2) {
-      standardizeBlock2(w, start, 0, n);
-    } else if (T[start * n + start] < 0) {
-      negateRow(w, start, start, n);
-    }
-  }
+  if (q === 2) standardizeBlock2(w, j, 0, n);
+  else if (T[j * n + j] < 0) negateRow(w, j, j, n);
+  if (p === 2) standardizeBlock2(w, j + q, 0, n);
+  else if (T[(j + q) * n + j + q] < 0) negateRow(w, j + q, j + q, n);
 }
 
-/** Kronecker solve of A11·R − L·A22 = −A12, B11·R − L·B22 = −B12 (R, L: p×q, row-major). */
-function solveBlockSylvester(a: Float64Array, b: Float64Array, p: number, q: number): { R: Float64Array; L: Float64Array } {
+/**
+ * Kronecker solve of A11·R − L·A22 = −A12, B11·R − L·B22 = −B12 (R, L: p×q, row-major).
+ * Returns sc.x holding [R; L] (R at 0, L at p·q).
+ */
+function solveBlockSylvester(a: Float64Array, b: Float64Array, p: number, q: number, sc: SwapScratch): Float64Array {
   const m = p + q, pq = p * q, N = 2 * pq;
-  const K = new Float64Array(N * N), rhs = new Float64Array(N);
-  const rIdx = (r: number, c: number): number => r * q + c;
-  const lIdx = (r: number, c: number): number => pq + r * q + c;
-  for (const [M, off] of [[a, 0], [b, pq]] as const) {
+  const { K, rhs } = sc;
+  K.fill(0, 0, N * N);
+  for (let pass = 0; pass < 2; pass++) {
+    const M = pass === 0 ? a : b, off = pass === 0 ? 0 : pq;
     for (let i = 0; i < p; i++) {
       for (let k = 0; k < q; k++) {
         const row = off + i * q + k;
-        for (let t = 0; t < p; t++) K[row * N + rIdx(t, k)] += M[i * m + t]; // (M11·R)[i][k]
-        for (let t = 0; t < q; t++) K[row * N + lIdx(i, t)] -= M[(p + t) * m + p + k]; // −(L·M22)[i][k]
+        for (let t = 0; t < p; t++) K[row * N + t * q + k] += M[i * m + t]; // (M11·R)[i][k]
+        for (let t = 0; t < q; t++) K[row * N + pq + i * q + t] -= M[(p + t) * m + p + k]; // −(L·M22)[i][k]
         rhs[row] = -M[i * m + p + k];
       }
     }
   }
-  const x = solveCompletePivoting(K, rhs, N);
-  return { R: x.slice(0, pq), L: x.slice(pq) };
+  return solveCompletePivoting(K, rhs, N, sc);
 }
 
 /** Gaussian elimination with complete pivoting; tiny pivots are perturbed as in LAPACK dgetc2. */
-function solveCompletePivoting(K: Float64Array, rhs: Float64Array, N: number): Float64Array {
-  const colPerm = Array.from({ length: N }, (_, i) => i);
+function solveCompletePivoting(K: Float64Array, rhs: Float64Array, N: number, sc: SwapScratch): Float64Array {
+  const colPerm = sc.colPerm;
+  for (let i = 0; i < N; i++) colPerm[i] = i;
   let maxAbs = 0;
-  for (let k = 0; k < K.length; k++) maxAbs = Math.max(maxAbs, Math.abs(K[k]));
+  for (let k = 0; k < N * N; k++) maxAbs = Math.max(maxAbs, Math.abs(K[k]));
   const smin = Math.max(ULP * maxAbs, SAFE_MIN);
   for (let k = 0; k < N; k++) {
     let pr = k, pc = k, best = -1;
@@ -250,7 +275,7 @@ function solveCompletePivoting(K: Float64Array, rhs: Float64Array, N: number): F
     }
     if (pc !== k) {
       for (let r = 0; r < N; r++) { const t = K[r * N + k]; K[r * N + k] = K[r * N + pc]; K[r * N + pc] = t; }
-      const t = colPerm[k]!; colPerm[k] = colPerm[pc]!; colPerm[pc] = t;
+      const t = colPerm[k]; colPerm[k] = colPerm[pc]; colPerm[pc] = t;
     }
     if (Math.abs(K[k * N + k]) < smin) K[k * N + k] = smin;
     const piv = K[k * N + k];
@@ -261,38 +286,38 @@ function solveCompletePivoting(K: Float64Array, rhs: Float64Array, N: number): F
       rhs[r] -= f * rhs[k];
     }
   }
-  const y = new Float64Array(N);
+  const y = sc.y, x = sc.x;
   for (let k = N - 1; k >= 0; k--) {
     let s = rhs[k];
     for (let c = k + 1; c < N; c++) s -= K[k * N + c] * y[c];
     y[k] = s / K[k * N + k];
   }
-  const x = new Float64Array(N);
-  for (let k = 0; k < N; k++) x[colPerm[k]!] = y[k];
+  for (let k = 0; k < N; k++) x[colPerm[k]] = y[k];
   return x;
 }
 
-/** The m×q matrix [X; I_q] for X: p×q (row-major). */
-function stackWithIdentity(X: Float64Array, p: number, q: number): Float64Array {
-  const m = p + q, out = new Float64Array(m * q);
-  out.set(X.subarray(0, p * q), 0);
+/** out (m×q) = [X; I_q] for X: p×q (row-major) stored in src from offset `from`. */
+function stackWithIdentity(src: Float64Array, from: number, p: number, q: number, out: Float64Array): void {
+  const m = p + q;
+  out.fill(0, 0, m * q);
+  for (let k = 0; k < p * q; k++) out[k] = src[from + k];
   for (let k = 0; k < q; k++) out[(p + k) * q + k] = 1;
-  return out;
 }
 
-/** Orthogonal m×m U whose first q columns span the columns of X (m×q), by Householder QR. */
-function completeOrthogonal(X: Float64Array, m: number, q: number): Float64Array {
-  const x = Float64Array.from(X);
-  const U = new Float64Array(m * m);
+/**
+ * U (m×m, written to `U`) orthogonal with its first q columns spanning the columns of x (m×q),
+ * by Householder QR; x is overwritten. `v` is scratch of length m.
+ */
+function completeOrthogonal(x: Float64Array, m: number, q: number, U: Float64Array, v: Float64Array): void {
+  U.fill(0, 0, m * m);
   for (let i = 0; i < m; i++) U[i * m + i] = 1;
-  const v = new Float64Array(m);
   for (let k = 0; k < q; k++) {
     let norm = 0;
     for (let i = k; i < m; i++) norm = Math.hypot(norm, x[i * q + k]);
     if (norm === 0) continue;
     const alpha = x[k * q + k];
     const beta = alpha >= 0 ? -norm : norm;
-    v.fill(0);
+    v.fill(0, 0, m);
     v[k] = 1;
     for (let i = k + 1; i < m; i++) v[i] = x[i * q + k] / (alpha - beta);
     const tau = (beta - alpha) / beta;
@@ -308,12 +333,10 @@ function completeOrthogonal(X: Float64Array, m: number, q: number): Float64Array
       for (let i = k; i < m; i++) U[r * m + i] -= tau * s * v[i];
     }
   }
-  return U;
 }
 
-/** Uᵀ·M·V for m×m row-major matrices. */
-function similarity(U: Float64Array, M: Float64Array, V: Float64Array, m: number): Float64Array {
-  const tmp = new Float64Array(m * m), out = new Float64Array(m * m);
+/** out = Uᵀ·M·V for m×m row-major matrices (`tmp` scratch). */
+function similarity(U: Float64Array, M: Float64Array, V: Float64Array, m: number, out: Float64Array, tmp: Float64Array): void {
   for (let i = 0; i < m; i++) for (let j = 0; j < m; j++) {
     let s = 0;
     for (let k = 0; k < m; k++) s += U[k * m + i] * M[k * m + j];
@@ -324,12 +347,11 @@ function similarity(U: Float64Array, M: Float64Array, V: Float64Array, m: number
     for (let k = 0; k < m; k++) s += tmp[i * m + k] * V[k * m + j];
     out[i * m + j] = s;
   }
-  return out;
 }
 
 /** ‖U·M·Vᵀ − M0‖_F for m×m row-major matrices. */
-function reconstructionError(U: Float64Array, M: Float64Array, V: Float64Array, M0: Float64Array, m: number): number {
-  const tmp = new Float64Array(m * m), diff = new Float64Array(m * m);
+function reconstructionError(U: Float64Array, M: Float64Array, V: Float64Array, M0: Float64Array, m: number, sc: SwapScratch): number {
+  const tmp = sc.tmp, diff = sc.diff;
   for (let i = 0; i < m; i++) for (let j = 0; j < m; j++) {
     let s = 0;
     for (let k = 0; k < m; k++) s += U[i * m + k] * M[k * m + j];
@@ -340,7 +362,7 @@ function reconstructionError(U: Float64Array, M: Float64Array, V: Float64Array, 
     for (let k = 0; k < m; k++) s += tmp[i * m + k] * V[j * m + k];
     diff[i * m + j] = s - M0[i * m + j];
   }
-  return frobeniusNorm(diff);
+  return frobeniusNorm(diff.subarray(0, m * m));
 }
 
 function lowerBlockNorm(M: Float64Array, m: number, q: number): number {
@@ -353,29 +375,67 @@ function zeroLowerBlock(M: Float64Array, m: number, q: number): void {
   for (let r = q; r < m; r++) for (let c = 0; c < q; c++) M[r * m + c] = 0;
 }
 
-/** Rows j..j+m−1 of M (columns [c0, c1)) ← Uᵀ·(those rows), U: m×m. */
+/**
+ * Rows j..j+m−1 of M (columns [c0, c1)) ← Uᵀ·(those rows), U: m×m. Written out for each window
+ * size (2, 3, 4): these loops run O(n) times per swap and O(n²) swaps per reordering, and the
+ * generic triple loop with a buffer was three times slower. Same operations, same order.
+ */
 function leftMultiplyRows(M: Float64Array, n: number, j: number, m: number, U: Float64Array, c0: number, c1: number): void {
-  const buf = new Float64Array(m);
-  for (let c = c0; c < c1; c++) {
-    for (let r = 0; r < m; r++) {
-      let s = 0;
-      for (let k = 0; k < m; k++) s += U[k * m + r] * M[(j + k) * n + c];
-      buf[r] = s;
+  const o0 = j * n, o1 = o0 + n, o2 = o1 + n, o3 = o2 + n;
+  if (m === 2) {
+    const u00 = U[0], u01 = U[1], u10 = U[2], u11 = U[3];
+    for (let c = c0; c < c1; c++) {
+      const x0 = M[o0 + c], x1 = M[o1 + c];
+      M[o0 + c] = u00 * x0 + u10 * x1;
+      M[o1 + c] = u01 * x0 + u11 * x1;
     }
-    for (let r = 0; r < m; r++) M[(j + r) * n + c] = buf[r];
+  } else if (m === 3) {
+    const u00 = U[0], u01 = U[1], u02 = U[2], u10 = U[3], u11 = U[4], u12 = U[5], u20 = U[6], u21 = U[7], u22 = U[8];
+    for (let c = c0; c < c1; c++) {
+      const x0 = M[o0 + c], x1 = M[o1 + c], x2 = M[o2 + c];
+      M[o0 + c] = u00 * x0 + u10 * x1 + u20 * x2;
+      M[o1 + c] = u01 * x0 + u11 * x1 + u21 * x2;
+      M[o2 + c] = u02 * x0 + u12 * x1 + u22 * x2;
+    }
+  } else {
+    const u00 = U[0], u01 = U[1], u02 = U[2], u03 = U[3], u10 = U[4], u11 = U[5], u12 = U[6], u13 = U[7];
+    const u20 = U[8], u21 = U[9], u22 = U[10], u23 = U[11], u30 = U[12], u31 = U[13], u32 = U[14], u33 = U[15];
+    for (let c = c0; c < c1; c++) {
+      const x0 = M[o0 + c], x1 = M[o1 + c], x2 = M[o2 + c], x3 = M[o3 + c];
+      M[o0 + c] = u00 * x0 + u10 * x1 + u20 * x2 + u30 * x3;
+      M[o1 + c] = u01 * x0 + u11 * x1 + u21 * x2 + u31 * x3;
+      M[o2 + c] = u02 * x0 + u12 * x1 + u22 * x2 + u32 * x3;
+      M[o3 + c] = u03 * x0 + u13 * x1 + u23 * x2 + u33 * x3;
+    }
   }
 }
 
-/** Columns j..j+m−1 of M (rows [0, r1)) ← (those columns)·V, V: m×m. */
+/** Columns j..j+m−1 of M (rows [0, r1)) ← (those columns)·V, V: m×m; written out per size as above. */
 function rightMultiplyCols(M: Float64Array, n: number, j: number, m: number, V: Float64Array, r1: number): void {
-  const buf = new Float64Array(m);
-  for (let r = 0; r < r1; r++) {
-    const o = r * n + j;
-    for (let c = 0; c < m; c++) {
-      let s = 0;
-      for (let k = 0; k < m; k++) s += M[o + k] * V[k * m + c];
-      buf[c] = s;
+  if (m === 2) {
+    const v00 = V[0], v01 = V[1], v10 = V[2], v11 = V[3];
+    for (let r = 0, o = j; r < r1; r++, o += n) {
+      const x0 = M[o], x1 = M[o + 1];
+      M[o] = x0 * v00 + x1 * v10;
+      M[o + 1] = x0 * v01 + x1 * v11;
     }
-    for (let c = 0; c < m; c++) M[o + c] = buf[c];
+  } else if (m === 3) {
+    const v00 = V[0], v01 = V[1], v02 = V[2], v10 = V[3], v11 = V[4], v12 = V[5], v20 = V[6], v21 = V[7], v22 = V[8];
+    for (let r = 0, o = j; r < r1; r++, o += n) {
+      const x0 = M[o], x1 = M[o + 1], x2 = M[o + 2];
+      M[o] = x0 * v00 + x1 * v10 + x2 * v20;
+      M[o + 1] = x0 * v01 + x1 * v11 + x2 * v21;
+      M[o + 2] = x0 * v02 + x1 * v12 + x2 * v22;
+    }
+  } else {
+    const v00 = V[0], v01 = V[1], v02 = V[2], v03 = V[3], v10 = V[4], v11 = V[5], v12 = V[6], v13 = V[7];
+    const v20 = V[8], v21 = V[9], v22 = V[10], v23 = V[11], v30 = V[12], v31 = V[13], v32 = V[14], v33 = V[15];
+    for (let r = 0, o = j; r < r1; r++, o += n) {
+      const x0 = M[o], x1 = M[o + 1], x2 = M[o + 2], x3 = M[o + 3];
+      M[o] = x0 * v00 + x1 * v10 + x2 * v20 + x3 * v30;
+      M[o + 1] = x0 * v01 + x1 * v11 + x2 * v21 + x3 * v31;
+      M[o + 2] = x0 * v02 + x1 * v12 + x2 * v22 + x3 * v32;
+      M[o + 3] = x0 * v03 + x1 * v13 + x2 * v23 + x3 * v33;
+    }
   }
 }
