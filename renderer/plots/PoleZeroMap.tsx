@@ -4,7 +4,7 @@
  * Optional direct manipulation: drag a pole (a pair moves together, a real pole stays real) or
  * focus it and use the arrow keys (Shift: 10 × step).
  */
-import { useEffect, useId, useMemo, useRef, useState } from "react";
+import { useId, useMemo, useRef, useState } from "react";
 import { formatComplex } from "../../shared-engine/format";
 import { Axis } from "./Axis";
 import { legendFor } from "./legendModel";
@@ -27,6 +27,8 @@ export interface PoleZeroMapProps {
   variant?: PlotVariant;
   /** Called while a pole is dragged or moved by key, with its constrained new location. */
   onDragPole?: (seriesIndex: number, poleIndex: number, newLocation: PlotComplex) => void;
+  /** Called when a pointer drag of a pole ends (the pointer is released). */
+  onDragEnd?: () => void;
   /** Arrow-key step in the plane's units; default about 1 % of the visible width. */
   keyboardStep?: number;
   fileName?: string;
@@ -55,13 +57,19 @@ export function poleZeroCsv(series: readonly PoleZeroSeries[]): CsvColumn[] {
 }
 
 export function PoleZeroMap(props: PoleZeroMapProps) {
-  const { series, sampleTime, title = "Pole-zero map", width = 560, height = 460, variant = "screen", onDragPole, keyboardStep, fileName = "pole-zero-map" } = props;
+  const { series, sampleTime, title = "Pole-zero map", width = 560, height = 460, variant = "screen", onDragPole, onDragEnd, keyboardStep, fileName = "pole-zero-map" } = props;
   const svgRef = useRef<SVGSVGElement>(null);
   const screen = variant === "screen";
   const [preview, setPreview] = useState<{ seriesIndex: number; poles: PlotComplex[] } | null>(null);
   const [active, setActive] = useState<PoleMark | null>(null);
   const dragging = useRef<{ seriesIndex: number; index: number; pointerId: number } | null>(null);
-  useEffect(() => setPreview(null), [series]);
+  // New series from the parent replace the local drag preview. Reset during render (not in an
+  // effect): an effect would cost a second render and commit on every drag move.
+  const [previewOf, setPreviewOf] = useState(series);
+  if (previewOf !== series) {
+    setPreviewOf(series);
+    if (preview !== null) setPreview(null);
+  }
 
   const legend = legendFor(series).map((e, i) => ({ ...e, glyph: "pole" as const, tagged: i > 0 }));
   const top = frameHeaderHeight(legend, width) + 4;
@@ -107,7 +115,7 @@ export function PoleZeroMap(props: PoleZeroMapProps) {
     move(d.seriesIndex, d.index, { re: model.x.invert(pt.x), im: model.y.invert(pt.y) });
   };
   const onHandleUp = (e: React.PointerEvent) => {
-    if (dragging.current?.pointerId === e.pointerId) { dragging.current = null; setFrozen(null); e.stopPropagation(); }
+    if (dragging.current?.pointerId === e.pointerId) { dragging.current = null; setFrozen(null); e.stopPropagation(); onDragEnd?.(); }
   };
   const onHandleKey = (e: React.KeyboardEvent, p: PoleMark) => {
     const delta = arrowKeyDelta(e.key, step, e.shiftKey);

@@ -3,9 +3,10 @@
  * (degrees), paths with gaps where the response is unbounded (null), margin marks, and the
  * hover read-out. Pure; BodePlot.tsx draws it.
  */
-import { line, scaleLinear, scaleLog, type ScaleLinear, type ScaleLogarithmic } from "d3";
+import { scaleLinear, scaleLog, type ScaleLinear, type ScaleLogarithmic } from "d3";
 import { decadeDomain, linearTicks, logTicks, niceDomain, phaseTicks, type AxisModel } from "./axisModel";
 import { seriesStyle, type SeriesStyle } from "./palette";
+import { polylinePath, toHundredths } from "./polylinePath";
 import { fullPrecision, isDrawable, type Domain } from "./plotTypes";
 
 export interface BodeMargins {
@@ -126,11 +127,13 @@ export function bodeModel(input: BodeModelInput): BodeModel {
   const magY = scaleLinear().domain(magDomain).range([magTop + panelHeight, magTop]);
   const phaseY = scaleLinear().domain(phaseDomain).range([phaseTop + panelHeight, phaseTop]);
   const path = (s: BodeSeries, values: readonly (number | null)[], y: ScaleLinear<number, number>) =>
-    line<number>()
+    polylinePath(
+      s.frequency.length,
       // A null (unbounded) or non-finite sample ends the current piece: the curve shows a gap.
-      .defined((k) => isDrawable(values[k]) && s.frequency[k]! > 0)
-      .x((k) => Number(x(s.frequency[k]!).toFixed(2)))
-      .y((k) => Number(y(values[k] as number).toFixed(2)))(s.frequency.map((_, k) => k)) ?? "";
+      (k) => isDrawable(values[k]) && s.frequency[k]! > 0,
+      (k) => toHundredths(x(s.frequency[k]!)),
+      (k) => toHundredths(y(values[k] as number)),
+    );
 
   const marks: MarginMark[] = [];
   series.forEach((s, si) => {

@@ -3,10 +3,11 @@
  * shared time axis, input limits as dashed lines, step metrics as marks (rise-time band,
  * ±2 % settling band, overshoot peak), overlays dashed over their primary series. Pure.
  */
-import { line, scaleLinear, type ScaleLinear } from "d3";
+import { scaleLinear, type ScaleLinear } from "d3";
 import { linearTicks, niceDomain, tickLabel, type AxisModel } from "./axisModel";
 import { placeLabels, textSize, type Box, type LabelRequest } from "./labelPlacement";
 import { seriesStyle, type SeriesStyle } from "./palette";
+import { polylinePath, toHundredths } from "./polylinePath";
 import { isDrawable, type Domain } from "./plotTypes";
 
 export interface ResponseMetrics {
@@ -134,10 +135,12 @@ export function responseModel(input: ResponseModelInput): ResponseModel {
   const outDomain = niceDomain(series.flatMap((s) => s.output.flatMap((o) => visible(s, o))), 0.05, [0, ...bandValues]);
   const outY = scaleLinear().domain(outDomain).range([top + outH, top]);
   const pathOf = (s: ResponseSeries, vals: readonly (number | null)[], y: ScaleLinear<number, number>) =>
-    line<number>()
-      .defined((k) => isDrawable(vals[k]) && isDrawable(s.time[k]))
-      .x((k) => Number(x(s.time[k]!).toFixed(2)))
-      .y((k) => Number(y(vals[k] as number).toFixed(2)))(s.time.map((_, k) => k)) ?? "";
+    polylinePath(
+      s.time.length,
+      (k) => isDrawable(vals[k]) && isDrawable(s.time[k]),
+      (k) => toHundredths(x(s.time[k]!)),
+      (k) => toHundredths(y(vals[k] as number)),
+    );
 
   const outputs: ResponsePanel = {
     y: outY, top, height: outH,

@@ -7,6 +7,7 @@ export { migrateProject, MIGRATIONS } from "./migrations";
 export { validateProject } from "./validateProject";
 export { evaluateVariant, RICCATI_RESIDUAL_LIMIT, type EvaluateOptions } from "./evaluateVariant";
 export { evaluateProject } from "./evaluateProject";
+export { previewVariant, previewCovers, type VariantPreview } from "./preview";
 export { REQUIREMENT_METRICS, checkRequirements } from "./requirements";
 export { buildPlantModel } from "./buildPlant";
 export { fingerprint, canonicalJson, sha256Hex, utf8Bytes, FINGERPRINT_PREFIX } from "./fingerprint";
