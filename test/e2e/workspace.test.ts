@@ -103,7 +103,7 @@ describe("design workspace in browser mode", () => {
       expect(await field.inputValue()).toBe("1e-4x");
 
       await page.getByRole("tab", { name: "Structure" }).click();
-      await page.getByText("Controllable:").waitFor();
+      await page.getByText("Controllable:").first().waitFor();
       await page.screenshot({ path: screenshotPath("workspace-structure.png") });
       expect(problems).toEqual([]);
     } finally {
