@@ -28,7 +28,7 @@ import { finishRiccati } from "./riccatiRefine";
  * steady state gains for the discrete optimal regulator", IEEE Trans. Automatic Control
  * AC-16(4), 1971, in defect-correction form (Aclᵀ E Acl − E = −Res(X), X ← X + E).
  *
- * Cost: about 60·(2n)³ flops for QZ with both transformation matrices, O((2n+m)·n·m) for the
+ * Cost: about 46·(2n)³ flops for QZ accumulating only Z (Q is never formed), O((2n+m)·n·m) for the
  * compression, 4n³ for X and 10n³ for the closed-loop poles; each Newton step is one discrete
  * Lyapunov solve. Memory O((n+m)²). Iteration limits: those of QZ; at most 20 Newton steps.
  *

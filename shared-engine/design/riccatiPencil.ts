@@ -4,7 +4,7 @@
  * neither A⁻¹ nor R⁻¹) and for continuous equations with an ill-conditioned R.
  */
 import { EngineError } from "../errors";
-import { fromFloat64, qz, reorderQz, toFloat64, type GeneralizedEigenvalue } from "../linalg";
+import { qzRowMajor, reorderQzRowMajor, type GeneralizedEigenvalue } from "../linalg";
 import { graphSolution, symplecticScaling, type RiccatiData } from "./riccati";
 import { frobeniusOf, powerOfTwoNear } from "./riccatiKernels";
 
@@ -25,8 +25,13 @@ export const STABILITY_BOUNDARY_TOLERANCE = 10 * Math.sqrt(Number.EPSILON);
  * eigenvalues as the Hamiltonian / symplectic problem. Q, N, R are first scaled by a power of
  * two s so that ‖[Q N; Nᵀ R]‖ matches ‖[A B]‖ (X of the scaled problem is s·X), then the pencil
  * is balanced by D = diag(S, S⁻¹, T) (`symplecticScaling`) before compression.
+ * Only the right deflating subspace (Z) is read, so QZ and the reordering skip accumulating Q
+ * (about a fifth of their work); `accumulateQ = true` runs the full path instead, for tests
+ * that check both give the same X bit for bit.
  */
-export function solveByExtendedPencil(data: RiccatiData, kind: "continuous" | "discrete"): { x: Float64Array; rcond: number } {
+export function solveByExtendedPencil(
+  data: RiccatiData, kind: "continuous" | "discrete", accumulateQ = false,
+): { x: Float64Array; rcond: number } {
   const { n, m, a, b, q, r, nCross } = data;
   const normAB = Math.max(frobeniusOf(a), frobeniusOf(b));
   const normW = Math.max(frobeniusOf(q), frobeniusOf(nCross), frobeniusOf(r));
@@ -77,19 +82,19 @@ export function solveByExtendedPencil(data: RiccatiData, kind: "continuous" | "d
   const hc = hl.subarray(m * w);
   const jc = jl.subarray(m * w);
 
-  const form = qz(fromFloat64(hc, w, w), fromFloat64(jc, w, w));
+  const form = qzRowMajor(hc, jc, w, { wantQ: accumulateQ });
   const normH = frobeniusOf(hc);
   for (const ev of form.eigenvalues) checkBoundary(ev, kind, normH);
   const select = kind === "continuous"
     ? (ev: GeneralizedEigenvalue) => !ev.infinite && ev.value !== null && ev.value.re < 0
     : (ev: GeneralizedEigenvalue) => !ev.infinite && ev.value !== null && Math.hypot(ev.value.re, ev.value.im) < 1;
-  const ordered = reorderQz(form, select);
-  if (ordered.selectedCount !== n) {
-    throw new EngineError("no-stabilizing-solution", `No stabilizing solution: the ${kind} Riccati pencil has ${ordered.selectedCount} stable eigenvalues, not ${n}`, {
-      reason: "wrong-stable-count", stableCount: ordered.selectedCount, expected: n,
+  const selectedCount = reorderQzRowMajor(form, select);
+  if (selectedCount !== n) {
+    throw new EngineError("no-stabilizing-solution", `No stabilizing solution: the ${kind} Riccati pencil has ${selectedCount} stable eigenvalues, not ${n}`, {
+      reason: "wrong-stable-count", stableCount: selectedCount, expected: n,
     });
   }
-  const { x, rcond } = graphSolution(toFloat64(ordered.Z), n);
+  const { x, rcond } = graphSolution(transposeSquare(form.ZT, w), n);
   // Undo the scalings: X = S⁻¹·X_b·S⁻¹ / s.
   for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) x[i * n + j] /= s * d[i]! * d[j]!;
   return { x, rcond };
@@ -161,4 +166,11 @@ function applyReflector(a: Float64Array, cols: number, k: number, size: number, 
     const io = i * cols;
     for (let j = firstCol; j < cols; j++) a[io + j] -= vi * acc[j]!;
   }
+}
+
+/** Row-major transpose of an n×n array (Z from the stored Zᵀ). */
+function transposeSquare(m: Float64Array, n: number): Float64Array {
+  const out = new Float64Array(n * n);
+  for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) out[j * n + i] = m[i * n + j]!;
+  return out;
 }

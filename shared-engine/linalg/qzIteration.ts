@@ -24,7 +24,9 @@ const refl = reflShared;
  */
 export function iterate(w: PencilWork, maxIterations: number, anorm: number, bnorm: number): number {
   const { n, S, T } = w;
-  const wantSchur = w.QT !== null;
+  // With any accumulator the whole Schur form is wanted: rows and columns outside the active
+  // block are updated too. Z alone (no Q) gives the same S, T and Z, bit for bit.
+  const wantSchur = w.QT !== null || w.ZT !== null;
   // A diagonal entry of T this small is treated as zero: a perturbation of ε·‖E‖_F, which is
   // within the backward error of the whole algorithm.
   const btol = Math.max(SAFE_MIN, ULP * bnorm);
@@ -226,6 +228,7 @@ function doubleShiftSweep(
     applyRightPairToBoth(S, T, n, k, tz, u0, u1, c, s, rowStart, k + 2);
     applyRightPair(S, n, k, tz, u0, u1, c, s, k + 2, rEnd);
     if (QT && ZT) accumulateStep(QT, ZT, n, k, tau, v1, v2, tz, u0, u1, c, s);
+    else if (ZT) accumulateRightStep(ZT, n, k, tz, u0, u1, c, s);
     if (tz !== 0) T[o2 + k + 2] = beta;
     T[o2 + k] = 0;
     T[o2 + k + 1] = 0;
@@ -315,6 +318,19 @@ function accumulateStep(
     QT[o0 + j] = q0 - tau * wq;
     QT[o1 + j] = q1 - t1 * wq;
     QT[o2 + j] = q2 - t2 * wq;
+    const x0 = ZT[o0 + j], x1 = ZT[o1 + j], x2 = ZT[o2 + j];
+    const wv = tz * (u0 * x0 + u1 * x1 + x2);
+    const y0 = x0 - wv * u0, y1 = x1 - wv * u1;
+    ZT[o0 + j] = c * y0 - s * y1;
+    ZT[o1 + j] = c * y1 + s * y0;
+    ZT[o2 + j] = x2 - wv;
+  }
+}
+
+/** The Zᵀ half of `accumulateStep` alone (same operations, same order): Q is not wanted. */
+function accumulateRightStep(ZT: Float64Array, n: number, k: number, tz: number, u0: number, u1: number, c: number, s: number): void {
+  const o0 = k * n, o1 = o0 + n, o2 = o1 + n;
+  for (let j = 0; j < n; j++) {
     const x0 = ZT[o0 + j], x1 = ZT[o1 + j], x2 = ZT[o2 + j];
     const wv = tz * (u0 * x0 + u1 * x1 + x2);
     const y0 = x0 - wv * u0, y1 = x1 - wv * u1;

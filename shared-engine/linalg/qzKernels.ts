@@ -243,25 +243,35 @@ export function transposeSquare(M: Float64Array, n: number): Float64Array {
 }
 
 /**
- * Copies A and E (n×n) into one fresh buffer holding S, T and, when `withFactors`, Qᵀ = Zᵀ = I,
- * plus 3n doubles of scratch. One allocation instead of six: for n ≤ 20 allocation and garbage
- * collection otherwise cost more than the arithmetic.
+ * Which orthogonal factors a QZ run accumulates: none (eigenvalues only), only Z (the right
+ * Schur vectors, all that deflating-subspace users such as the Riccati solvers read), or both.
  */
-export function loadPencil(A: Matrix, E: Matrix, withFactors: boolean): PencilWork & { scratch: Float64Array } {
-  const n = A.rows, nn = n * n;
-  const blocks = withFactors ? 4 : 2;
+export type PencilFactors = "none" | "right" | "both";
+
+/**
+ * Copies A and E (n×n) into one fresh buffer holding S, T, the requested accumulators
+ * initialised to the identity (Qᵀ = Zᵀ = I), plus 3n doubles of scratch. One allocation instead
+ * of six: for n ≤ 20 allocation and garbage collection otherwise cost more than the arithmetic.
+ * A and E are Matrices, or row-major Float64Arrays of length n² (then `size` gives n).
+ */
+export function loadPencil(
+  A: Matrix | Float64Array, E: Matrix | Float64Array, factors: PencilFactors, size = 0,
+): PencilWork & { scratch: Float64Array } {
+  const n = A instanceof Float64Array ? size : A.rows, nn = n * n;
+  const blocks = factors === "both" ? 4 : factors === "right" ? 3 : 2;
   const buffer = new Float64Array(blocks * nn + 3 * n);
   const S = buffer.subarray(0, nn), T = buffer.subarray(nn, 2 * nn);
-  copyRowMajorInto(A, S); // bulk row copies instead of 2n² Matrix.get calls
-  copyRowMajorInto(E, T);
+  // Bulk row copies instead of 2n² Matrix.get calls.
+  if (A instanceof Float64Array) S.set(A.subarray(0, nn)); else copyRowMajorInto(A, S);
+  if (E instanceof Float64Array) T.set(E.subarray(0, nn)); else copyRowMajorInto(E, T);
   let QT: Float64Array | null = null, ZT: Float64Array | null = null;
-  if (withFactors) {
+  if (factors !== "none") {
+    ZT = buffer.subarray((blocks - 1) * nn, blocks * nn);
+    for (let i = 0; i < n; i++) ZT[i * n + i] = 1;
+  }
+  if (factors === "both") {
     QT = buffer.subarray(2 * nn, 3 * nn);
-    ZT = buffer.subarray(3 * nn, 4 * nn);
-    for (let i = 0; i < n; i++) {
-      QT[i * n + i] = 1;
-      ZT[i * n + i] = 1;
-    }
+    for (let i = 0; i < n; i++) QT[i * n + i] = 1;
   }
   return { n, S, T, QT, ZT, scratch: buffer.subarray(blocks * nn) };
 }

@@ -141,3 +141,46 @@ describe("solveDiscreteRiccati errors and degenerate input", () => {
     expectEngineError(() => solveDiscreteRiccati([[0.5]], new Matrix(1, 0), [[1]], [[1]]), "empty");
   });
 });
+
+// Appended with the Q-free QZ path of the extended pencil (imports are hoisted).
+import { prepareRiccatiData } from "../../../shared-engine/design/riccati";
+import { solveByExtendedPencil } from "../../../shared-engine/design/riccatiPencil";
+
+describe("the extended-pencil solver without the left Schur vectors", () => {
+  const sameBits = (a: Float64Array, b: Float64Array): boolean => a.length === b.length && a.every((v, k) => Object.is(v, b[k]));
+  /** Both paths give the same X and rcond bit for bit, or fail with the same error kind. */
+  const expectSamePaths = (A: number[][], B: number[][], Q: number[][], R: number[][], N: number[][] | null, kind: "discrete" | "continuous"): void => {
+    const data = prepareRiccatiData(A, B, Q, R, N);
+    const run = (accumulateQ: boolean): { x: Float64Array; rcond: number } | string => {
+      try {
+        return solveByExtendedPencil(data, kind, accumulateQ);
+      } catch (error) {
+        return (error as EngineError).kind;
+      }
+    };
+    const full = run(true), lean = run(false);
+    if (typeof full === "string" || typeof lean === "string") {
+      expect(lean).toEqual(full);
+      return;
+    }
+    expect(sameBits(lean.x, full.x), "X bit-identical").toBe(true);
+    expect(Object.is(lean.rcond, full.rcond), "rcond bit-identical").toBe(true);
+  };
+
+  it("gives an X bit-identical to the path accumulating Q on every discrete fixture case", () => {
+    // Fixture problems from generate_riccati.py (scipy solve_discrete_are); here only the two
+    // engine paths are compared with each other.
+    for (const c of discreteCases) {
+      expectSamePaths(c.A, c.B, c.Q, c.R, (c.N as number[][] | null) ?? null, "discrete");
+    }
+  });
+
+  it("gives an X bit-identical to the path accumulating Q on generated discrete and continuous problems", () => {
+    fc.assert(
+      fc.property(riccatiProblem(true), fc.boolean(), ({ A, B, Q, R, N }, discrete) => {
+        expectSamePaths(scale(A, 1 / 8), B, Q, R, N, discrete ? "discrete" : "continuous");
+      }),
+      { seed: 20240611, numRuns: 60 },
+    );
+  });
+});

@@ -408,3 +408,98 @@ describe("qz properties (fast-check)", () => {
     );
   });
 });
+
+// Appended with the row-major entry points (imports are hoisted; the import block above is left as it was).
+import { qzRowMajor, reorderQzRowMajor } from "../../../shared-engine/linalg/qz";
+
+describe("qzRowMajor and reorderQzRowMajor (the row-major internal entry points)", () => {
+  // The same-bits check: Object.is also tells −0 from +0.
+  const mismatches = (a: ArrayLike<number>, b: ArrayLike<number>): number => {
+    let count = a.length === b.length ? 0 : 1;
+    for (let k = 0; k < Math.min(a.length, b.length); k++) if (!Object.is(a[k], b[k])) count++;
+    return count;
+  };
+  const rowMajor = (m: Matrix): Float64Array => Float64Array.from(m.to1DArray());
+  const transposed = (m: Matrix): Float64Array => rowMajor(m.transpose());
+  const eigenBits = (evs: GeneralizedEigenvalue[]): number[] => evs.flatMap((e) => [e.alpha.re, e.alpha.im, e.beta]);
+  // Fixture pencils from generate_qz.py: random, identity E, graded, singular E (zero chasing
+  // and infinite eigenvalues), descriptor chain, and the n = 60 random pencil.
+  const insideUnitCircle = (ev: GeneralizedEigenvalue): boolean => ev.value !== null && Math.hypot(ev.value.re, ev.value.im) < 1;
+
+  for (const c of cases) {
+    it(`without Q gives S, T, Z and eigenvalues bit-identical to qz with Q (${c.name})`, () => {
+      const A = new Matrix(c.A), E = new Matrix(c.E);
+      const a = rowMajor(A), e = rowMajor(E);
+      const full = qz(A, E);
+      const withQ = qzRowMajor(a, e, c.n);
+      const noQ = qzRowMajor(a, e, c.n, { wantQ: false });
+      expect(noQ.QT).toBeNull();
+      expect(mismatches(a, rowMajor(A)), "A not modified").toBe(0);
+      expect(mismatches(e, rowMajor(E)), "E not modified").toBe(0);
+      for (const w of [withQ, noQ]) {
+        expect(mismatches(w.S, rowMajor(full.S)), "S").toBe(0);
+        expect(mismatches(w.T, rowMajor(full.T)), "T").toBe(0);
+        expect(mismatches(w.ZT, transposed(full.Z)), "Zᵀ").toBe(0);
+        expect(mismatches(eigenBits(w.eigenvalues), eigenBits(full.eigenvalues)), "eigenvalues").toBe(0);
+        expect(w.iterations).toBe(full.iterations);
+      }
+      expect(mismatches(withQ.QT!, transposed(full.Q)), "Qᵀ").toBe(0);
+    });
+
+    it(`reordering without Q gives S, T, Z bit-identical to reorderQz (${c.name})`, () => {
+      const A = new Matrix(c.A), E = new Matrix(c.E);
+      const full = qz(A, E);
+      let expected: (GeneralizedSchurForm & { selectedCount: number }) | null = null;
+      let expectedError: EngineError | null = null;
+      try {
+        expected = reorderQz(full, insideUnitCircle);
+      } catch (error) {
+        expectedError = error as EngineError;
+      }
+      const noQ = qzRowMajor(rowMajor(A), rowMajor(E), c.n, { wantQ: false });
+      if (expectedError) {
+        // A refused swap (close eigenvalues) is refused the same way without Q.
+        expect(() => reorderQzRowMajor(noQ, insideUnitCircle)).toThrow(expectedError.message);
+        return;
+      }
+      const count = reorderQzRowMajor(noQ, insideUnitCircle);
+      expect(count).toBe(expected!.selectedCount);
+      expect(mismatches(noQ.S, rowMajor(expected!.S)), "S").toBe(0);
+      expect(mismatches(noQ.T, rowMajor(expected!.T)), "T").toBe(0);
+      expect(mismatches(noQ.ZT, transposed(expected!.Z)), "Zᵀ").toBe(0);
+      expect(mismatches(eigenBits(noQ.eigenvalues), eigenBits(expected!.eigenvalues)), "eigenvalues").toBe(0);
+    });
+  }
+
+  it("the right factor alone still satisfies ZᵀZ = I and spans the selected deflating subspace", () => {
+    // Check A·Z₁ = Q₁·S₁₁ without Q: the columns of A·Z₁ and E·Z₁ lie in one k-dimensional
+    // space, i.e. [A·Z₁, E·Z₁] has rank k (k = selected count), for the n = 8 random fixture.
+    const c = byName("random n=8");
+    const A = new Matrix(c.A), E = new Matrix(c.E);
+    const w = qzRowMajor(rowMajor(A), rowMajor(E), c.n, { wantQ: false });
+    const k = reorderQzRowMajor(w, insideUnitCircle);
+    expect(k).toBeGreaterThan(0);
+    expect(k).toBeLessThan(c.n);
+    const Z = Matrix.from1DArray(c.n, c.n, Array.from(w.ZT)).transpose();
+    expectAtMost(fro(Z.transpose().mmul(Z).sub(Matrix.eye(c.n))), 100 * c.n * EPS, "‖ZᵀZ − I‖_F");
+    const Z1 = Z.subMatrix(0, c.n - 1, 0, k - 1);
+    const joint = new Matrix(c.n, 2 * k);
+    joint.setSubMatrix(A.mmul(Z1), 0, 0);
+    joint.setSubMatrix(E.mmul(Z1), 0, k);
+    const s = new SingularValueDecomposition(joint, { autoTranspose: true }).diagonal;
+    expectAtMost(s[k]!, 1000 * c.n * EPS * Math.max(fro(A), fro(E)), `σ_${k + 1}([A·Z₁, E·Z₁])`);
+  });
+
+  it("rejects a non-positive n, short arrays, non-finite entries and a bad iteration cap", () => {
+    const a = Float64Array.of(1, 2, 3, 4), e = Float64Array.of(1, 0, 0, 1);
+    const kindOf = (fn: () => unknown): string => {
+      try { fn(); } catch (error) { return (error as EngineError).kind; }
+      return "none";
+    };
+    expect(kindOf(() => qzRowMajor(a, e, 0))).toBe("empty");
+    expect(kindOf(() => qzRowMajor(a, e, 3))).toBe("shape-mismatch");
+    expect(kindOf(() => qzRowMajor(Float64Array.of(1, NaN, 3, 4), e, 2, { wantQ: false }))).toBe("non-finite");
+    expect(kindOf(() => qzRowMajor(a, e, 2, { maxIterations: -1 }))).toBe("invalid-argument");
+    expect(kindOf(() => reorderQzRowMajor(qzRowMajor(a, e, 2), 3 as never))).toBe("invalid-argument");
+  });
+});
