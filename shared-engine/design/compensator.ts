@@ -12,10 +12,11 @@
  */
 import { Matrix, solve } from "ml-matrix";
 import { EngineError } from "../errors";
-import { asMatrix, cabs, eigenvalues, reciprocalCondition, requireFinite, shapeOf, type Complex, type MatrixInput } from "../linalg";
+import { asMatrix, eigenvalues, reciprocalCondition, requireFinite, shapeOf, type Complex, type MatrixInput } from "../linalg";
 import { stateSpaceFromMatrices, type StateSpace } from "../model";
 import { loopMargins } from "../analysis/margins";
 import { blockMatrix, columnRange, rowSelection } from "./feedforward";
+import { poleSetMismatch } from "./poleSetMismatch";
 
 export interface CompensatorSpec {
   model: StateSpace;
@@ -175,7 +176,7 @@ export function assembleCompensator(spec: CompensatorSpec): AssembledCompensator
   const Baug = blockMatrix([[B], [S.mmul(D).mul(-h)]]);
   const Kaug = blockMatrix([[K, Ki]]);
   const expectedPoles = [...eigenvalues(Aaug.clone().sub(Baug.mmul(Kaug))), ...(n > 0 ? eigenvalues(A.clone().sub(Lp.mmul(C))) : [])];
-  const maxMismatch = matchMismatch(closedLoopPoles, expectedPoles);
+  const maxMismatch = poleSetMismatch(closedLoopPoles, expectedPoles);
   const separation = { passed: maxMismatch <= SEPARATION_TOLERANCE, maxMismatch, tolerance: SEPARATION_TOLERANCE };
   if (!separation.passed) warnings.push(`the closed-loop poles differ from the feedback and observer poles by ${maxMismatch.toExponential(2)} (tolerance ${SEPARATION_TOLERANCE.toExponential(0)}): the closed loop is ill-conditioned`);
   const stateFeedbackLoop = loopAtInputZero(Aaug, Baug, Kaug, T);
@@ -274,25 +275,6 @@ function marginWarnings(margins: NonNullable<AssembledCompensator["margins"]>, m
     out.push(`the observer-based loop keeps only ${gmObs.toFixed(1)} dB of gain margin${where}; the state-feedback loop had ${Number.isFinite(gmSf) ? `${gmSf.toFixed(1)} dB` : "an unlimited gain margin"} (Doyle 1978)`);
   }
   return out;
-}
-
-/** Greedy nearest matching of two pole multisets; max |Δ|/max(1, |λ_expected|). */
-function matchMismatch(actual: Complex[], expected: Complex[]): number {
-  if (actual.length !== expected.length) return Infinity;
-  const remaining = [...actual];
-  let worst = 0;
-  const order = [...expected].sort((a, b) => cabs(b) - cabs(a));
-  for (const e of order) {
-    let best = 0;
-    let dist = Infinity;
-    remaining.forEach((a, i) => {
-      const d = Math.hypot(a.re - e.re, a.im - e.im);
-      if (d < dist) { dist = d; best = i; }
-    });
-    remaining.splice(best, 1);
-    worst = Math.max(worst, dist / Math.max(1, cabs(e)));
-  }
-  return worst;
 }
 
 function invertWellPosed(M: Matrix, what: string): Matrix {

@@ -11,7 +11,7 @@ import { stateSpaceFromMatrices } from "../model";
 import { linearize } from "./linearize";
 import { solveOperatingPoint, type OperatingPointRequest } from "./operatingPoint";
 import type { CompiledNonlinearPlant } from "./plant";
-import { closedLoopMatrix } from "./simulateClosedLoop";
+import { closedLoopMatrix } from "./closedLoopMatrix";
 
 export type SweepSampling =
   | { kind: "grid"; pointsPerParameter: number }

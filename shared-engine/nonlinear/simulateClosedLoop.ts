@@ -5,11 +5,17 @@
  */
 import { Matrix } from "ml-matrix";
 import { EngineError } from "../errors";
-import { asMatrix, eigenvalues, expm, requireFinite, type MatrixInput } from "../linalg";
+import { asMatrix, eigenvalues, requireFinite, type MatrixInput } from "../linalg";
 import { integrateDormandPrince } from "./dormandPrince";
 import { linearize } from "./linearize";
+import { closedLoopMatrix } from "./closedLoopMatrix";
+import { LinearPrediction, type Exogenous } from "./linearPrediction";
+import { scenarioEvents } from "./closedLoopScenario";
 import type { OperatingPoint } from "./operatingPoint";
 import type { CompiledNonlinearPlant } from "./plant";
+
+// Kept exported from here (robustness sweeps and other folders know it as part of this module).
+export { closedLoopMatrix } from "./closedLoopMatrix";
 
 export interface ClosedLoopScenario {
   /** Steps of tracked-output set-points (needs integral action on that output). */
@@ -68,9 +74,6 @@ export interface ClosedLoopSimulation extends SimulatedSignals {
   warnings: string[];
   names: { states: string[]; inputs: string[]; outputs: string[] };
 }
-
-interface Event { time: number; apply: (exo: Exogenous) => void }
-interface Exogenous { wv: Float64Array; ws: Float64Array; dr: Float64Array }
 
 function finiteMatrix(value: MatrixInput, name: string, rows: number, cols: number): Matrix {
   const M = asMatrix(value, name);
@@ -156,34 +159,7 @@ export function simulateClosedLoop(request: ClosedLoopSimulationRequest): Closed
 
   // Scenario events.
   const scenario = request.scenario ?? {};
-  const events: Event[] = [];
-  const eventTime = (t: number | undefined, what: string): number => {
-    const v = t ?? 0;
-    if (typeof v !== "number" || !Number.isFinite(v) || v < 0) throw new EngineError("invalid-argument", `${what}.time must be a finite number ≥ 0 (it is ${v})`, { argument: what });
-    return v;
-  };
-  (scenario.setpointSteps ?? []).forEach((s, k) => {
-    const j = trackedNames.indexOf(s.output);
-    if (j < 0) throw new EngineError("invalid-argument", `scenario.setpointSteps[${k}]: output '${s.output}' has no integral action, so a set-point step cannot act on it (outputs with integral action: ${trackedNames.join(", ") || "none"})`, { argument: `scenario.setpointSteps[${k}]` });
-    const size = checkNumber(s.size, `scenario.setpointSteps[${k}].size`);
-    events.push({ time: eventTime(s.time, `scenario.setpointSteps[${k}]`), apply: (e) => { e.dr[j] = e.dr[j]! + size; } });
-  });
-  (scenario.disturbanceChanges ?? []).forEach((s, k) => {
-    const j = plant.names.disturbances.indexOf(s.disturbance);
-    if (j < 0) throw new EngineError("invalid-argument", `scenario.disturbanceChanges[${k}]: '${s.disturbance}' is not a declared disturbance`, { argument: `scenario.disturbanceChanges[${k}]` });
-    const size = checkNumber(s.size, `scenario.disturbanceChanges[${k}].size`);
-    const time = eventTime(s.time, `scenario.disturbanceChanges[${k}]`);
-    if (s.kind === "ramp") events.push({ time, apply: (e) => { e.ws[j] = e.ws[j]! + size; } });
-    else if (s.kind === "step") events.push({ time, apply: (e) => { e.wv[j] = e.wv[j]! + size; } });
-    else throw new EngineError("invalid-argument", `scenario.disturbanceChanges[${k}].kind must be "step" or "ramp"`, { argument: `scenario.disturbanceChanges[${k}].kind` });
-  });
-  events.sort((a, b) => a.time - b.time);
-  const offset = new Float64Array(n);
-  for (const [name, value] of Object.entries(scenario.initialOffset ?? {})) {
-    const i = plant.names.states.indexOf(name);
-    if (i < 0) throw new EngineError("invalid-argument", `scenario.initialOffset.${name}: '${name}' is not a declared state`, { argument: `scenario.initialOffset.${name}` });
-    offset[i] = checkNumber(value, `scenario.initialOffset.${name}`);
-  }
+  const { events, offset } = scenarioEvents(scenario, trackedNames, plant);
 
   // Break points: 0, output times, event times, samples. Points closer than `snap` are merged
   // (k·T and an output time may differ by rounding), so no controller update happens twice.
@@ -407,161 +383,4 @@ export function simulateClosedLoop(request: ClosedLoopSimulationRequest): Closed
     out.largestDivergence = best;
   }
   return out;
-}
-
-function checkNumber(value: unknown, path: string): number {
-  if (typeof value !== "number" || !Number.isFinite(value)) throw new EngineError("invalid-argument", `${path} must be a finite number (it is ${String(value)})`, { argument: path });
-  return value;
-}
-
-/**
- * The continuous closed-loop matrix of [δx; ξ] under u = −Kδx − Kiξ, ξ' = C_I δx + D_I δu:
- * [[A − BK, −BKi], [C_I − D_I K, −D_I Ki]] (C_I, D_I: the tracked rows of C, D).
- */
-export function closedLoopMatrix(A: Matrix, B: Matrix, C: Matrix, D: Matrix, K: Matrix, Ki: Matrix, tracked: number[]): Matrix {
-  const n = A.rows;
-  const r = tracked.length;
-  const M = new Matrix(n + r, n + r);
-  const BK = B.mmul(K);
-  const BKi = B.mmul(Ki);
-  for (let i = 0; i < n; i++) {
-    for (let j = 0; j < n; j++) M.set(i, j, A.get(i, j) - BK.get(i, j));
-    for (let j = 0; j < r; j++) M.set(i, n + j, -BKi.get(i, j));
-  }
-  if (r > 0) {
-    const CI = new Matrix(tracked.map((t) => C.getRow(t)));
-    const DI = new Matrix(tracked.map((t) => D.getRow(t)));
-    const DK = DI.mmul(K);
-    const DKi = DI.mmul(Ki);
-    for (let i = 0; i < r; i++) {
-      for (let j = 0; j < n; j++) M.set(n + i, j, CI.get(i, j) - DK.get(i, j));
-      for (let j = 0; j < r; j++) M.set(n + i, n + j, -DKi.get(i, j));
-    }
-  }
-  return M;
-}
-
-/**
- * Exact simulation of the linearized loop by matrix exponentials of an augmented system
- * s = [δx (n); ξ (r, continuous only); w (q); ẇ (q); δr (r); u_held (m, sampled only)].
- */
-class LinearPrediction {
-  private readonly s: Float64Array;
-  private readonly N: number;
-  private readonly M: Matrix;
-  private readonly cache = new Map<string, Matrix>();
-  private readonly xi: Float64Array;
-  private t = 0;
-  private readonly o: { x: number; xi: number; wv: number; ws: number; dr: number; uh: number };
-
-  constructor(
-    private readonly A: Matrix, private readonly B: Matrix, private readonly C: Matrix, private readonly D: Matrix,
-    private readonly F: Matrix, private readonly E: Matrix, private readonly K: Matrix, private readonly Ki: Matrix,
-    private readonly tracked: number[], private readonly T: number | null,
-  ) {
-    const n = A.rows, m = B.columns, q = F.columns, r = tracked.length;
-    const sampled = T !== null;
-    const o = { x: 0, xi: n, wv: 0, ws: 0, dr: 0, uh: 0 };
-    o.wv = o.xi + (sampled ? 0 : r);
-    o.ws = o.wv + q;
-    o.dr = o.ws + q;
-    o.uh = o.dr + r;
-    this.o = o;
-    this.N = o.uh + (sampled ? m : 0);
-    this.s = new Float64Array(this.N);
-    this.xi = new Float64Array(r);
-    const M = new Matrix(this.N, this.N);
-    if (!sampled) {
-      const Acl = closedLoopMatrix(A, B, C, D, K, Ki, tracked);
-      for (let i = 0; i < n + r; i++) for (let j = 0; j < n + r; j++) M.set(i, j, Acl.get(i, j));
-      for (let i = 0; i < n; i++) for (let j = 0; j < q; j++) M.set(i, o.wv + j, F.get(i, j));
-      for (let i = 0; i < r; i++) {
-        for (let j = 0; j < q; j++) M.set(o.xi + i, o.wv + j, E.get(tracked[i]!, j));
-        M.set(o.xi + i, o.dr + i, -1);
-      }
-    } else {
-      for (let i = 0; i < n; i++) {
-        for (let j = 0; j < n; j++) M.set(i, j, A.get(i, j));
-        for (let j = 0; j < m; j++) M.set(i, o.uh + j, B.get(i, j));
-        for (let j = 0; j < q; j++) M.set(i, o.wv + j, F.get(i, j));
-      }
-    }
-    for (let j = 0; j < q; j++) M.set(o.wv + j, o.ws + j, 1);
-    this.M = M;
-  }
-
-  setInitial(dx: Float64Array): void { this.s.set(dx, this.o.x); }
-
-  advanceTo(t: number): void {
-    const dt = t - this.t;
-    if (dt <= 0) return;
-    const key = dt.toPrecision(14);
-    let P = this.cache.get(key);
-    if (P === undefined) {
-      P = expm(this.M.clone().mul(dt));
-      this.cache.set(key, P);
-    }
-    const next = new Float64Array(this.N);
-    for (let i = 0; i < this.N; i++) {
-      let v = 0;
-      for (let j = 0; j < this.N; j++) v += P.get(i, j) * this.s[j]!;
-      next[i] = v;
-    }
-    this.s.set(next);
-    this.t = t;
-  }
-
-  applyEvent(event: Event): void {
-    const q = this.F.columns, r = this.tracked.length;
-    const exo: Exogenous = { wv: new Float64Array(q), ws: new Float64Array(q), dr: new Float64Array(r) };
-    event.apply(exo);
-    for (let j = 0; j < q; j++) { this.s[this.o.wv + j]! += exo.wv[j]!; this.s[this.o.ws + j]! += exo.ws[j]!; }
-    for (let j = 0; j < r; j++) this.s[this.o.dr + j]! += exo.dr[j]!;
-  }
-
-  /** Sampled controller update at a sample instant: u_held = −Kδx − Kiξ; ξ += T·e. */
-  sample(): void {
-    const m = this.B.columns, r = this.tracked.length;
-    const du = this.deltaU();
-    for (let i = 0; i < m; i++) this.s[this.o.uh + i] = du[i]!;
-    const dy = this.deltaY(du);
-    for (let j = 0; j < r; j++) this.xi[j] = this.xi[j]! + this.T! * (dy[this.tracked[j]!]! - this.s[this.o.dr + j]!);
-  }
-
-  private deltaU(): Float64Array {
-    const n = this.A.rows, m = this.B.columns, r = this.tracked.length;
-    const xi = this.T === null ? this.s.subarray(this.o.xi, this.o.xi + r) : this.xi;
-    const du = new Float64Array(m);
-    for (let i = 0; i < m; i++) {
-      let v = 0;
-      for (let j = 0; j < n; j++) v -= this.K.get(i, j) * this.s[j]!;
-      for (let j = 0; j < r; j++) v -= this.Ki.get(i, j) * xi[j]!;
-      du[i] = v;
-    }
-    return du;
-  }
-
-  private deltaY(du: Float64Array): Float64Array {
-    const n = this.A.rows, m = this.B.columns, q = this.F.columns, p = this.C.rows;
-    const dy = new Float64Array(p);
-    for (let i = 0; i < p; i++) {
-      let v = 0;
-      for (let j = 0; j < n; j++) v += this.C.get(i, j) * this.s[j]!;
-      for (let j = 0; j < m; j++) v += this.D.get(i, j) * du[j]!;
-      for (let j = 0; j < q; j++) v += this.E.get(i, j) * this.s[this.o.wv + j]!;
-      dy[i] = v;
-    }
-    return dy;
-  }
-
-  signals(x0: Float64Array, u0: Float64Array, y0: Float64Array): { states: number[]; inputs: number[]; outputs: number[] } {
-    const n = this.A.rows, m = this.B.columns;
-    const du = this.T === null ? this.deltaU() : this.s.slice(this.o.uh, this.o.uh + m);
-    const dy = this.deltaY(du);
-    return {
-      states: Array.from({ length: n }, (_, i) => x0[i]! + this.s[i]!),
-      inputs: Array.from({ length: m }, (_, i) => u0[i]! + du[i]!),
-      outputs: Array.from(dy, (v, i) => y0[i]! + v),
-    };
-  }
 }

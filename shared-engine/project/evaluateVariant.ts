@@ -12,32 +12,27 @@
  */
 import type { Matrix } from "ml-matrix";
 import { EngineError, toErrorPayload } from "../errors";
-import type { Complex } from "../linalg";
-import { discretize, type StateSpace } from "../model";
-import { frequencyResponse } from "../analysis/frequencyResponse";
+import type { StateSpace } from "../model";
 import { frequencyGrid } from "../analysis/frequencyGrid";
-import { loopMargins, type LoopMargins } from "../analysis/margins";
 import { stepResponse } from "../analysis/timeResponse";
-import { responseMetrics } from "../analysis/responseMetrics";
 import { poles as plantPoles } from "../analysis/poles";
-import { transmissionZeros } from "../analysis/zeros";
-import { structure } from "../analysis/structure";
-import { dcGain } from "../analysis/dcGain";
-import { lqr } from "../design/lqr";
-import { placePoles } from "../design/placePoles";
 import { placeObserverPoles } from "../design/observerByPoles";
 import { kalmanContinuous, kalmanDiscrete } from "../design/kalman";
-import { designIntegralLqr, designIntegralPoles } from "../design/integralAction";
-import { referenceFeedforward } from "../design/feedforward";
 import { assembleCompensator } from "../design/compensator";
 import { atPath, buildNonlinearPlant, buildPlantModel, toComplex, type BuiltNonlinearPlant } from "./buildPlant";
 import { nonlinearPlantFields, runNonlinearCheck, runRobustness, type FeedbackGains } from "./nonlinearChecks";
-import { loopAtInput, stateFeedbackClosedLoop } from "./closedLoop";
+import { loopAtInput } from "./closedLoop";
 import type { PlantSpec, RequirementSpec, VariantSpec } from "./format";
-import type { ComplexJson, VariantResult } from "./result";
+import type { VariantResult } from "./result";
 import { checkRequirements } from "./requirements";
 import { assertFiniteResult } from "./finite";
 import { disturbanceStep } from "./disturbanceStep";
+import { closedLoopJson, complexList, rows } from "./resultJson";
+import { discretizeForVariant } from "./discretizeVariant";
+import { designFeedback, integratedOutputIndices, reportFeedback, type FeedbackDesign } from "./feedbackDesign";
+import { plantReport } from "./plantReport";
+import { addBodeResult, addStepResult, checkSampleTimes } from "./responseResults";
+import { addMarginsResult } from "./marginsResult";
 
 export interface EvaluateOptions {
   requirements?: RequirementSpec[];
@@ -46,28 +41,7 @@ export interface EvaluateOptions {
   plantIndex?: number;
 }
 
-/** Tolerance of the Riccati residual check (‖Res‖_F/‖X‖_F); common practice for double precision. */
-export const RICCATI_RESIDUAL_LIMIT = 1e-8;
-
-const rows = (m: Matrix): number[][] => m.to2DArray();
-const complexList = (list: readonly Complex[]): ComplexJson[] => list.map((c) => ({ re: c.re, im: c.im }));
-
-function isStable(poles: readonly Complex[], sampleTime: number | null): boolean {
-  return sampleTime === null ? poles.every((p) => p.re < 0) : poles.every((p) => Math.hypot(p.re, p.im) < 1);
-}
-
-interface FeedbackDesign {
-  K: Matrix;
-  Ki?: Matrix;
-  closedLoopPoles: Complex[];
-  /** The loop used for step responses (outputs: plant outputs then control inputs). */
-  servoLoop: StateSpace;
-  /** A, B of the system the gain [K Ki] acts on (augmented with integrators when present). */
-  loopA: Matrix;
-  loopB: Matrix;
-  loopK: Matrix;
-  referenceGain?: Matrix;
-}
+export { RICCATI_RESIDUAL_LIMIT } from "./feedbackDesign";
 
 export function evaluateVariant(plantSpec: PlantSpec, variant: VariantSpec, options: EvaluateOptions = {}): VariantResult {
   const result: VariantResult = { id: variant.id, name: variant.name ?? variant.id, checks: [], warnings: [] };
@@ -100,17 +74,7 @@ function run(plantSpec: PlantSpec, variant: VariantSpec, options: EvaluateOption
     model = buildPlantModel(plantSpec.model, ppath);
   }
 
-  if (variant.discretize) {
-    const d = variant.discretize;
-    const method = d.method === "bilinear" ? "tustin" : d.method;
-    model = atPath(`${vpath}.discretize`, () => discretize(model, d.sampleTime, { method, prewarpRadPerSec: d.prewarpRadPerSec }));
-    result.discrete = {
-      A: rows(model.A), B: rows(model.B), C: rows(model.C), D: rows(model.D),
-      ...(model.F.columns > 0 ? { F: rows(model.F), E: rows(model.E) } : {}),
-      sampleTime: d.sampleTime,
-      method,
-    };
-  }
+  model = discretizeForVariant(model, variant, vpath, result);
   const T = model.sampleTime;
   result.plant = plantReport(model);
   if (nonlinear) Object.assign(result.plant, nonlinearPlantFields(nonlinear));
@@ -118,19 +82,8 @@ function run(plantSpec: PlantSpec, variant: VariantSpec, options: EvaluateOption
   // ---- State feedback --------------------------------------------------------------------
   let feedback: FeedbackDesign | null = null;
   if (variant.stateFeedback) {
-    feedback = atPath(`${vpath}.stateFeedback`, () => designFeedback(model, variant, result));
-    result.gain = { K: rows(feedback.K) };
-    if (feedback.Ki) result.gain.Ki = rows(feedback.Ki);
-    if (feedback.referenceGain) result.gain.referenceGain = rows(feedback.referenceGain);
-    result.closedLoopPoles = complexList(feedback.closedLoopPoles);
-    const stable = isStable(feedback.closedLoopPoles, T);
-    result.checks.push({
-      name: "closed-loop-stable",
-      passed: stable,
-      detail: stable
-        ? `every state-feedback closed-loop pole lies ${T === null ? "in the open left half-plane" : "inside the unit circle"}`
-        : "a state-feedback closed-loop pole is unstable",
-    });
+    feedback = atPath(`${vpath}.stateFeedback`, () => designFeedback(model, variant, result, { guaranteedMarginCheck: true }));
+    reportFeedback(feedback, T, result);
   }
 
   // ---- Observer ----------------------------------------------------------------------------
@@ -198,61 +151,14 @@ function run(plantSpec: PlantSpec, variant: VariantSpec, options: EvaluateOption
     result.warnings.push(...assembled.warnings);
   }
 
-  if (servoLoop) {
-    result.closedLoop = {
-      A: rows(servoLoop.A), B: rows(servoLoop.B), C: rows(servoLoop.C), D: rows(servoLoop.D), F: rows(servoLoop.F), E: rows(servoLoop.E),
-      sampleTime: servoLoop.sampleTime,
-      names: {
-        states: [...servoLoop.names.states],
-        inputs: [...servoLoop.names.inputs],
-        outputs: [...servoLoop.names.outputs],
-        disturbances: [...servoLoop.names.disturbances],
-      },
-    };
-  }
+  if (servoLoop) result.closedLoop = closedLoopJson(servoLoop);
 
   // ---- Bode ------------------------------------------------------------------------------------
   const inputLoop = compensatorLoop ?? (feedback ? loopAtInput(feedback.loopA, feedback.loopB, feedback.loopK, 0, T) : null);
-  if (variant.bode) {
-    const system = inputLoop ?? model;
-    const fr = atPath(`${vpath}.bode`, () => frequencyResponse(system, variant.bode!.frequencies));
-    result.bode = {
-      loop: inputLoop ? "plant-input" : "plant",
-      input: model.names.inputs[0] ?? "u1",
-      output: inputLoop ? model.names.inputs[0] ?? "u1" : model.names.outputs[0] ?? "y1",
-      frequency: [...fr.frequencyRadPerSec],
-      magnitudeDb: fr.magnitudeDb.map((k) => k[0]![0]!),
-      phaseDeg: fr.phaseDeg.map((k) => k[0]![0]!),
-    };
-    if (fr.unbounded.length > 0) result.warnings.push(`Bode: the response is unbounded at ${fr.unbounded.length} grid frequencies (a pole on the ${T === null ? "imaginary axis" : "unit circle"}); those points are null`);
-  }
+  if (variant.bode) addBodeResult(model, inputLoop, variant.bode.frequencies, vpath, result);
 
   // ---- Margins -----------------------------------------------------------------------------------
-  if (variant.margins) {
-    const spec = variant.margins;
-    if ("feedback" in spec) {
-      const lm = atPath(`${vpath}.margins`, () => loopMargins(model));
-      result.margins = marginsJson(lm, "unity-negative");
-    } else {
-      if (!inputLoop || !feedback) throw new EngineError("invalid-argument", `${vpath}.margins: margins at the plant input need a state-feedback design`, {});
-      const lm = atPath(`${vpath}.margins`, () => loopMargins(inputLoop));
-      result.margins = marginsJson(lm, "plant-input");
-      if (feedback.loopB.columns > 1 && !compensatorLoop) {
-        // A multi-input loop is broken at each input in turn, the other inputs' loops closed;
-        // the headline margins are those of the first input.
-        result.margins.channels = model.names.inputs.map((name, j) => {
-          const ch = atPath(`${vpath}.margins`, () => loopMargins(loopAtInput(feedback.loopA, feedback.loopB, feedback.loopK, j, T)));
-          return { input: name, gainDb: ch.gainMarginDb, phaseDeg: ch.phaseMarginDeg, delayMargin: ch.delayMarginSec, sensitivityPeak: ch.sensitivityPeak.value };
-        });
-      } else if (feedback.loopB.columns > 1) {
-        result.warnings.push("margins: the observer-based loop is broken at the first input with the other inputs' loops closed");
-      }
-      if (compensatorLoop) {
-        const sf = loopMargins(loopAtInput(feedback.loopA, feedback.loopB, feedback.loopK, 0, T));
-        result.margins.stateFeedbackLoop = { gainDb: sf.gainMarginDb, phaseDeg: sf.phaseMarginDeg };
-      }
-    }
-  }
+  addMarginsResult(model, variant, { feedback, inputLoop, compensatorLoop }, vpath, result);
 
   // ---- Step --------------------------------------------------------------------------------------
   if (variant.step) {
@@ -260,38 +166,7 @@ function run(plantSpec: PlantSpec, variant: VariantSpec, options: EvaluateOption
     const times = variant.step.times;
     checkSampleTimes(times, T, `${vpath}.step.times`);
     const resp = atPath(`${vpath}.step`, () => stepResponse(system, times, { input: 0 }));
-    const p = model.C.rows;
-    const m = model.B.columns;
-    const closed = servoLoop !== null;
-    const y0 = resp.outputs[0]!;
-    const stable = isStable(plantPoles(system), T);
-    const dc = stable ? dcGain(system) : null;
-    const finalValue = dc && dc.gain ? dc.gain[0]![0]! : undefined;
-    const control = closed ? resp.outputs.slice(p, p + m) : undefined;
-    const metrics = responseMetrics(resp.time, y0, {
-      reference: closed ? 1 : undefined,
-      finalValue,
-      stable,
-      input: control?.[0],
-    });
-    result.step = {
-      loop: closed ? "closed-loop" : "open-loop",
-      input: system.names.inputs[0] ?? "r1",
-      time: resp.time,
-      output: resp.outputs.slice(0, p),
-      outputNames: [...model.names.outputs],
-      ...(control ? { control } : {}),
-      riseTime: metrics.riseTimeSec,
-      settlingTime: metrics.settlingTimeSec,
-      overshootPct: metrics.overshootPct,
-      peak: metrics.peak,
-      peakTime: metrics.peakTimeSec,
-      steadyStateValue: metrics.steadyStateValue,
-      steadyStateError: closed ? metrics.steadyStateError : null,
-      ...(metrics.peakInput !== undefined ? { peakInput: metrics.peakInput } : {}),
-      status: metrics.status,
-    };
-    result.warnings.push(...resp.warnings.map((w) => `step: ${w}`));
+    addStepResult(model, system, resp, plantPoles(system), servoLoop !== null, result);
   }
 
   // ---- Disturbance step ----------------------------------------------------------------------------
@@ -317,155 +192,6 @@ function run(plantSpec: PlantSpec, variant: VariantSpec, options: EvaluateOption
   }
 
   if (options.requirements && options.requirements.length > 0) result.checks.push(...checkRequirements(options.requirements, result));
-}
-
-/** A sampled loop's response exists only at whole sample periods. */
-function checkSampleTimes(times: readonly number[], T: number | null, path: string): void {
-  if (T === null) return;
-  for (const t of times) {
-    const k = t / T;
-    if (Math.abs(k - Math.round(k)) > 1e-9 * Math.max(1, k)) {
-      throw new EngineError("invalid-argument", `${path}: ${t} s is not a whole number of sample periods (T = ${T} s) of the sampled loop`, {});
-    }
-  }
-}
-
-function plantReport(model: StateSpace): NonNullable<VariantResult["plant"]> {
-  const p = plantPoles(model);
-  const s = structure(model);
-  const report: NonNullable<VariantResult["plant"]> = {
-    dimensions: { states: model.A.rows, inputs: model.B.columns, outputs: model.C.rows, disturbances: model.F.columns },
-    names: {
-      states: [...model.names.states],
-      inputs: [...model.names.inputs],
-      outputs: [...model.names.outputs],
-      disturbances: [...model.names.disturbances],
-    },
-    sampleTime: model.sampleTime,
-    poles: complexList(p),
-    stable: isStable(p, model.sampleTime),
-    controllable: s.controllable,
-    observable: s.observable,
-    stabilizable: s.stabilizable,
-    detectable: s.detectable,
-    uncontrollableModes: complexList(s.uncontrollableModes),
-    unobservableModes: complexList(s.unobservableModes),
-  };
-  try {
-    report.zeros = complexList(transmissionZeros(model).finite);
-  } catch (error) {
-    if (!(error instanceof EngineError)) throw error;
-    // Zeros are informative here, not required for the design: say why they are missing.
-    report.zeros = undefined;
-  }
-  return report;
-}
-
-function integratedOutputIndices(model: StateSpace, variant: VariantSpec): number[] {
-  const outs = variant.integralAction?.outputs ?? [];
-  return outs.map((o) => (typeof o === "number" ? o : model.names.outputs.indexOf(o)));
-}
-
-function designFeedback(model: StateSpace, variant: VariantSpec, result: VariantResult): FeedbackDesign {
-  const sf = variant.stateFeedback!;
-  const T = model.sampleTime;
-  const integrated = integratedOutputIndices(model, variant);
-  if (variant.integralAction) {
-    const ia = variant.integralAction;
-    const design =
-      sf.method === "lqr"
-        ? designIntegralLqr(model, integrated, sf.Q, sf.R, ia.weights ?? integrated.map(() => 1))
-        : designIntegralPoles(model, integrated, sf.poles.map(toComplex), (ia.poles ?? []).map(toComplex));
-    result.design = { method: sf.method === "lqr" ? "LQR with integral action" : "pole placement with integral action", gainNorm: design.gainNorm };
-    if (design.riccati) {
-      result.riccati = { X: rows(design.riccati.X), residual: design.riccati.residual, conditionIndicator: design.riccati.conditionIndicator };
-      pushResidualCheck(result, design.riccati.residual);
-    }
-    result.warnings.push(...design.warnings);
-    return {
-      K: design.Kx,
-      Ki: design.Ki,
-      closedLoopPoles: design.closedLoopPoles,
-      servoLoop: design.servoLoop,
-      loopA: design.augmented.A,
-      loopB: design.augmented.B,
-      loopK: design.K,
-    };
-  }
-  let K: Matrix;
-  let closedLoopPoles: Complex[];
-  if (sf.method === "lqr") {
-    const r = lqr(model.A, model.B, sf.Q, sf.R, sf.N ?? null, T);
-    K = r.K;
-    closedLoopPoles = r.closedLoopPoles;
-    result.riccati = { X: rows(r.X), residual: r.residual, conditionIndicator: r.conditionIndicator };
-    result.design = { method: T === null ? "continuous LQR" : "discrete LQR", gainNorm: K.norm("frobenius") };
-    pushResidualCheck(result, r.residual);
-    if (r.margins && r.margins.guaranteeApplies) {
-      result.checks.push({
-        name: "lqr-guaranteed-margins",
-        passed: r.margins.guaranteeHolds,
-        detail: "single-input continuous LQR: |1 + L(jω)| ≥ 1, so gain margin [1/2, ∞) and phase margin ≥ 60° (Safonov & Athans 1977)",
-        value: r.margins.minReturnDifference,
-        limit: 1,
-      });
-    }
-    result.warnings.push(...r.warnings);
-  } else {
-    const placed = placePoles(model.A, model.B, sf.poles.map(toComplex));
-    K = placed.K;
-    closedLoopPoles = placed.achievedPoles;
-    result.design = {
-      method: placed.method === "single-input" ? "pole placement (single input)" : "pole placement (robust, multi-input)",
-      gainNorm: placed.gainNorm,
-      eigenvectorCondition: placed.eigenvectorCondition,
-      maxPoleError: placed.maxPoleError,
-    };
-    result.warnings.push(...placed.warnings);
-  }
-  let referenceGain: Matrix | undefined;
-  if (variant.referenceFeedforward) {
-    const ff = referenceFeedforward(model, K);
-    referenceGain = ff.N;
-    result.warnings.push(ff.warning);
-  }
-  return {
-    K,
-    closedLoopPoles,
-    servoLoop: stateFeedbackClosedLoop(model, K, referenceGain),
-    loopA: model.A,
-    loopB: model.B,
-    loopK: K,
-    referenceGain,
-  };
-}
-
-function pushResidualCheck(result: VariantResult, residual: number): void {
-  result.checks.push({
-    name: "riccati-residual",
-    passed: residual <= RICCATI_RESIDUAL_LIMIT,
-    detail: `relative Riccati residual ‖Res‖_F/‖X‖_F = ${residual.toExponential(2)} (limit ${RICCATI_RESIDUAL_LIMIT.toExponential(0)})`,
-    value: residual,
-    limit: RICCATI_RESIDUAL_LIMIT,
-  });
-}
-
-function marginsJson(lm: LoopMargins, loop: "unity-negative" | "plant-input"): NonNullable<VariantResult["margins"]> {
-  const dm = lm.diskMargin;
-  return {
-    loop,
-    gainDb: lm.gainMarginDb,
-    phaseDeg: lm.phaseMarginDeg,
-    gainCrossover: lm.gainCrossoverRadPerSec,
-    phaseCrossover: lm.phaseCrossoverRadPerSec,
-    delayMargin: lm.delayMarginSec,
-    sensitivityPeak: lm.sensitivityPeak.value,
-    complementarySensitivityPeak: lm.complementarySensitivityPeak.value,
-    ...(dm.gainRangeDb[0] !== null && dm.gainRangeDb[1] !== null
-      ? { diskMargin: { alpha: dm.alpha, gainRangeDb: [dm.gainRangeDb[0], dm.gainRangeDb[1]] as [number, number], phaseDeg: dm.phaseDeg } }
-      : {}),
-    closedLoopStable: lm.closedLoopStable,
-  };
 }
 
 /** Used by callers that want the automatic grid for a plant (the workbench's Bode view). */
