@@ -8,6 +8,8 @@
  */
 import path from "node:path";
 import { APP_HOST, APP_SCHEME, splitUrl } from "./appOrigin";
+// A plain-JS module so that scripts/static-server.mjs (plain Node) serves with the same table.
+import { COMMON_RESPONSE_HEADERS, CONTENT_SECURITY_POLICY, MIME_TYPES } from "./securityHeaders.mjs";
 
 /**
  * The Content-Security-Policy sent with every response (pages, assets and refusals alike).
@@ -28,31 +30,10 @@ import { APP_HOST, APP_SCHEME, splitUrl } from "./appOrigin";
  * - object-src 'none', base-uri 'none', form-action 'none', frame-ancestors 'none': no
  *   plugins, no <base> rewriting, no form posts, and the app cannot be framed.
  */
-export const CONTENT_SECURITY_POLICY =
-  "default-src 'self'; script-src 'self'; style-src 'self' 'unsafe-inline'; img-src 'self' data: blob:; " +
-  "font-src 'self'; connect-src 'self'; worker-src 'self' blob:; object-src 'none'; base-uri 'none'; " +
-  "form-action 'none'; frame-ancestors 'none'";
+export { CONTENT_SECURITY_POLICY };
 
-/** MIME types of the files a renderer build contains. Other extensions are refused (404). */
-export const MIME_TYPES: Readonly<Record<string, string>> = {
-  ".html": "text/html; charset=utf-8",
-  ".js": "text/javascript; charset=utf-8",
-  ".mjs": "text/javascript; charset=utf-8",
-  ".css": "text/css; charset=utf-8",
-  ".json": "application/json; charset=utf-8",
-  ".map": "application/json; charset=utf-8",
-  ".svg": "image/svg+xml",
-  ".png": "image/png",
-  ".jpg": "image/jpeg",
-  ".jpeg": "image/jpeg",
-  ".webp": "image/webp",
-  ".ico": "image/x-icon",
-  ".woff": "font/woff",
-  ".woff2": "font/woff2",
-  ".ttf": "font/ttf",
-  ".wasm": "application/wasm",
-  ".txt": "text/plain; charset=utf-8",
-};
+/** MIME types of the files a renderer build contains (shared with the static server). Other extensions are refused (404). */
+export { MIME_TYPES };
 
 export type AppRequestResolution =
   | { ok: true; filePath: string; mimeType: string }
@@ -109,10 +90,7 @@ export function appResponseHeaders(contentType: string): Record<string, string> 
   return {
     "Content-Type": contentType,
     "Content-Security-Policy": CONTENT_SECURITY_POLICY,
-    "X-Content-Type-Options": "nosniff",
-    "Referrer-Policy": "no-referrer",
-    "Cross-Origin-Opener-Policy": "same-origin",
-    "Cache-Control": "no-cache",
+    ...COMMON_RESPONSE_HEADERS,
   };
 }
 

@@ -7,39 +7,18 @@ import { createServer } from "node:http";
 import { createReadStream } from "node:fs";
 import { realpath, stat } from "node:fs/promises";
 import path from "node:path";
+import { COMMON_RESPONSE_HEADERS, CONTENT_SECURITY_POLICY, MIME_TYPES } from "../main/securityHeaders.mjs";
 
-// Keep equal to CONTENT_SECURITY_POLICY in main/protocol.ts (a test compares them).
-export const CONTENT_SECURITY_POLICY =
-  "default-src 'self'; script-src 'self'; style-src 'self' 'unsafe-inline'; img-src 'self' data: blob:; " +
-  "font-src 'self'; connect-src 'self'; worker-src 'self' blob:; object-src 'none'; base-uri 'none'; " +
-  "form-action 'none'; frame-ancestors 'none'";
+// The policy, like the file types and the other headers, comes from the one table the desktop
+// app's protocol handler uses.
+export { CONTENT_SECURITY_POLICY };
 
-export const MIME_TYPES = {
-  ".html": "text/html; charset=utf-8",
-  ".js": "text/javascript; charset=utf-8",
-  ".mjs": "text/javascript; charset=utf-8",
-  ".css": "text/css; charset=utf-8",
-  ".json": "application/json; charset=utf-8",
-  ".map": "application/json; charset=utf-8",
-  ".svg": "image/svg+xml",
-  ".png": "image/png",
-  ".jpg": "image/jpeg",
-  ".jpeg": "image/jpeg",
-  ".webp": "image/webp",
-  ".ico": "image/x-icon",
-  ".woff": "font/woff",
-  ".woff2": "font/woff2",
-  ".ttf": "font/ttf",
-  ".wasm": "application/wasm",
-  ".txt": "text/plain; charset=utf-8",
-};
+// The file types and the other headers come from the one table the desktop app uses.
+export { MIME_TYPES };
 
 const BASE_HEADERS = {
   "Content-Security-Policy": CONTENT_SECURITY_POLICY,
-  "X-Content-Type-Options": "nosniff",
-  "Referrer-Policy": "no-referrer",
-  "Cross-Origin-Opener-Policy": "same-origin",
-  "Cache-Control": "no-cache",
+  ...COMMON_RESPONSE_HEADERS,
 };
 
 /**
