@@ -65,6 +65,8 @@ export function expm(A: MatrixInput): Matrix {
   return matrixOfRowMajor(expmRowMajor(rowMajorOf(a), n, "A"), n, n);
 }
 
+let sharedWork = new Float64Array(0);
+
 /**
  * e^A for a row-major n×n Float64Array (not modified); the kernel behind `expm` and the Van
  * Loan integrals. Inputs must already be validated (finite, square).
@@ -73,7 +75,17 @@ export function expmRowMajor(input: Float64Array, n: number, name: string): Floa
   const nn = n * n;
   // One workspace for every temporary (eight n×n slots): at n ≤ 20 a dozen separate typed-array
   // allocations cost about as much as the arithmetic.
-  const work = new Float64Array(8 * nn);
+  // The workspace is kept between calls (module level, grown on demand): expmRowMajor is
+  // synchronous and calls nothing that re-enters it, and the result is copied out below.
+  // Only small orders are cached (n ≤ 64: at most 256 KiB held); larger ones allocate.
+  let work: Float64Array;
+  if (n <= 64) {
+    if (sharedWork.length < 8 * nn) sharedWork = new Float64Array(8 * nn);
+    work = sharedWork;
+    work.fill(0, 0, 8 * nn); // the Padé sums rely on zero-initialised slots
+  } else {
+    work = new Float64Array(8 * nn);
+  }
   const a = work.subarray(0, nn);
   a.set(input.subarray(0, nn));
   // Preprocessing: trace reduction (Higham 2005, §2), kept only if it lowers the 1-norm.

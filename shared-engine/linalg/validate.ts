@@ -58,6 +58,22 @@ export function requireSquare(m: Matrix, name: string): void {
 }
 
 export function requireFinite(m: Matrix, name: string): void {
+  // Fast path: scan ml-matrix's row arrays directly (a call to `get` per entry dominated this
+  // check at n ≤ 20); any non-finite entry, or other storage, falls through to the loop below
+  // that locates it and reports it.
+  const data = (m as unknown as { data?: unknown }).data;
+  if (Array.isArray(data) && data.length === m.rows) {
+    let clean = true;
+    for (let i = 0; i < m.rows && clean; i++) {
+      const row = data[i] as unknown;
+      if (!(row instanceof Float64Array) || row.length !== m.columns) { clean = false; break; }
+      for (let j = 0; j < row.length; j++) {
+        const v = row[j]!;
+        if (v - v !== 0) { clean = false; break; } // NaN or ±Infinity
+      }
+    }
+    if (clean) return;
+  }
   for (let i = 0; i < m.rows; i++) {
     for (let j = 0; j < m.columns; j++) {
       const v = m.get(i, j);
