@@ -7,7 +7,9 @@
  */
 import { Matrix } from "ml-matrix";
 import { EngineError } from "../errors";
-import { asMatrix, balance, fromFloat64, requireFinite, requireNonEmpty, requireSquareFinite, shapeOf, toFloat64, type Complex, type MatrixInput } from "../linalg";
+import { asMatrix, requireFinite, requireNonEmpty, requireSquareFinite, shapeOf, type Complex, type MatrixInput } from "../linalg";
+import { balanceInPlace } from "../linalg/balance";
+import { rowMajorOf } from "../linalg/denseKernels";
 import { cholesky, frobeniusOf, multiply, oneNormRowMajor, solveInPlace } from "./riccatiKernels";
 
 /** Result of a continuous or discrete algebraic Riccati solve. All matrices are fresh copies. */
@@ -84,8 +86,8 @@ export function prepareRiccatiData(
   requireShape(R, "R", m, m, `B is ${shapeOf(B)}, so there are ${m} inputs`);
   requireFinite(Q, "Q");
   requireFinite(R, "R");
-  const q = toFloat64(Q);
-  const r = toFloat64(R);
+  const q = rowMajorOf(Q);
+  const r = rowMajorOf(R);
   requireSymmetric(q, n, "Q");
   requireSymmetric(r, m, "R");
   let nCross: Float64Array = new Float64Array(n * m);
@@ -94,10 +96,10 @@ export function prepareRiccatiData(
     const N = asMatrix(Nin, "N");
     requireShape(N, "N", n, m, `it pairs the ${n} states with the ${m} inputs`);
     requireFinite(N, "N");
-    nCross = toFloat64(N);
+    nCross = rowMajorOf(N);
     hasCross = nCross.some((v) => v !== 0);
   }
-  return { n, m, a: toFloat64(A), b: toFloat64(B), q, r, nCross, hasCross };
+  return { n, m, a: rowMajorOf(A), b: rowMajorOf(B), q, r, nCross, hasCross };
 }
 
 function requireShape(M: Matrix, name: string, rows: number, cols: number, why: string): void {
@@ -174,18 +176,29 @@ export function checkWeights(data: RiccatiData, requireRDefinite: boolean): { rF
 }
 
 /**
- * From a 2n×2n orthogonal basis matrix `u` (row-major) whose first n columns span the stable
- * subspace, forms X = U21·U11⁻¹ (n×n) and the reciprocal 1-norm condition of U11. Throws
+ * From a 2n×2n orthogonal basis matrix `u` (row-major; its transpose when `transposed`) whose
+ * first n columns span the stable subspace, forms X = U21·U11⁻¹ (n×n) and the reciprocal 1-norm condition of U11. Throws
  * "no-stabilizing-solution" when U11 is numerically singular (the subspace is not a graph).
  */
-export function graphSolution(u: Float64Array, n: number): { x: Float64Array; rcond: number } {
+export function graphSolution(u: Float64Array, n: number, transposed = false): { x: Float64Array; rcond: number } {
   const w = 2 * n;
   const u11 = new Float64Array(n * n);
   const u21 = new Float64Array(n * n);
-  for (let i = 0; i < n; i++) {
+  if (transposed) {
+    // `u` holds the basis transposed (row j = column j): read it without forming the transpose.
     for (let j = 0; j < n; j++) {
-      u11[i * n + j] = u[i * w + j]!;
-      u21[i * n + j] = u[(n + i) * w + j]!;
+      const row = j * w;
+      for (let i = 0; i < n; i++) {
+        u11[i * n + j] = u[row + i]!;
+        u21[i * n + j] = u[row + n + i]!;
+      }
+    }
+  } else {
+    for (let i = 0; i < n; i++) {
+      for (let j = 0; j < n; j++) {
+        u11[i * n + j] = u[i * w + j]!;
+        u21[i * n + j] = u[(n + i) * w + j]!;
+      }
     }
   }
   const norm11 = oneNormRowMajor(u11, n, n);
@@ -226,9 +239,10 @@ export function symplecticScaling(mag: Float64Array, size: number, n: number): F
     for (let j = 0; j < size && !any; j++) if (mag[i * size + j] !== 0) any = true;
   }
   if (!any) return d;
-  let scale: Float64Array;
+  // `mag` is scratch: balance it in place (finite, since H and J are).
+  const scale = new Float64Array(size);
   try {
-    scale = balance(fromFloat64(mag, size, size), { permute: false, scale: true }).scale;
+    balanceInPlace(mag, size, false, true, new Int32Array(size), scale);
   } catch (error) {
     if (error instanceof EngineError && error.kind === "no-convergence") return d;
     throw error;

@@ -3,7 +3,9 @@
  * with the extended-pencil QZ method as the route for an ill-conditioned R.
  */
 import { EngineError } from "../errors";
-import { fromFloat64, realSchur, reorderSchur, selectLeftHalfPlane, toFloat64, type MatrixInput } from "../linalg";
+import { selectLeftHalfPlane, type MatrixInput } from "../linalg";
+import { reorderSchurInPlace } from "../linalg/reorderSchur";
+import { defaultSchurIterationLimit, eigenvaluesOfQuasiTriangular, realSchurRowMajor } from "../linalg/schur";
 import {
   checkWeights, graphSolution, prepareRiccatiData, symplecticScaling, type RiccatiData, type RiccatiOptions, type RiccatiSolution,
 } from "./riccati";
@@ -124,9 +126,14 @@ function hamiltonianSchur(data: RiccatiData, rFactor: Float64Array): { x: Float6
   for (let i = 0; i < w * w; i++) mag[i] = Math.abs(h[i]!);
   const d = symplecticScaling(mag, w, n);
   for (let i = 0; i < w; i++) for (let j = 0; j < w; j++) h[i * w + j] *= d[j]! / d[i]!;
-  const form = realSchur(fromFloat64(h, w, w));
+  if (!h.every(Number.isFinite)) {
+    throw new EngineError("non-finite", "The scaled Hamiltonian has non-finite entries (A, B, Q or R too large)", { argument: "A" });
+  }
+  // Row-major Schur kernels: the same steps and checks as realSchur / reorderSchur without
+  // their Matrix round trips (a measurable share of the cost at n ≤ 20).
+  const form = realSchurRowMajor(h, w, defaultSchurIterationLimit(w));
   const tol = STABILITY_BOUNDARY_TOLERANCE * frobeniusOf(h);
-  for (const lambda of form.eigenvalues) {
+  for (const lambda of eigenvaluesOfQuasiTriangular(form.t, w)) {
     if (Math.abs(lambda.re) <= tol) {
       throw new EngineError(
         "no-stabilizing-solution",
@@ -135,13 +142,13 @@ function hamiltonianSchur(data: RiccatiData, rFactor: Float64Array): { x: Float6
       );
     }
   }
-  const ordered = reorderSchur(form, selectLeftHalfPlane);
+  const ordered = reorderSchurInPlace(form.t, form.q, w, selectLeftHalfPlane);
   if (ordered.selectedCount !== n) {
     throw new EngineError("no-stabilizing-solution", `No stabilizing solution: the Hamiltonian has ${ordered.selectedCount} stable eigenvalues, not ${n}`, {
       reason: "wrong-stable-count", stableCount: ordered.selectedCount, expected: n,
     });
   }
-  const { x, rcond } = graphSolution(toFloat64(ordered.Q), n);
+  const { x, rcond } = graphSolution(form.q, n);
   // Undo both scalings: X = σ·S⁻¹·X_b·S⁻¹.
   for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) x[i * n + j] *= sigma / (d[i]! * d[j]!);
   return { x, rcond };

@@ -94,7 +94,7 @@ export function solveByExtendedPencil(
       reason: "wrong-stable-count", stableCount: selectedCount, expected: n,
     });
   }
-  const { x, rcond } = graphSolution(transposeSquare(form.ZT, w), n);
+  const { x, rcond } = graphSolution(form.ZT, n, true);
   // Undo the scalings: X = S⁻¹·X_b·S⁻¹ / s.
   for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) x[i * n + j] /= s * d[i]! * d[j]!;
   return { x, rcond };
@@ -166,11 +166,4 @@ function applyReflector(a: Float64Array, cols: number, k: number, size: number, 
     const io = i * cols;
     for (let j = firstCol; j < cols; j++) a[io + j] -= vi * acc[j]!;
   }
-}
-
-/** Row-major transpose of an n×n array (Z from the stored Zᵀ). */
-function transposeSquare(m: Float64Array, n: number): Float64Array {
-  const out = new Float64Array(n * n);
-  for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) out[j * n + i] = m[i * n + j]!;
-  return out;
 }

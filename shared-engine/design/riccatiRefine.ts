@@ -4,6 +4,10 @@
  */
 import { EngineError } from "../errors";
 import { eigenvalues, fromFloat64, solveContinuousLyapunov, solveDiscreteLyapunov, toFloat64, type Complex } from "../linalg";
+import { balanceInPlace } from "../linalg/balance";
+import { matrixOfRowMajor } from "../linalg/denseKernels";
+import { reduceToHessenbergInPlace } from "../linalg/hessenberg";
+import { defaultSchurIterationLimit, francisQRInPlace } from "../linalg/schur";
 import type { RiccatiData, RiccatiOptions, RiccatiSolution } from "./riccati";
 import { asymmetryOf, cholesky, forwardSubstitute, frobeniusOf, multiply, solveInPlace, symmetrizeInPlace, transpose } from "./riccatiKernels";
 
@@ -122,6 +126,31 @@ function newtonStep(data: RiccatiData, kind: RiccatiKind, x: Float64Array, ev: R
   return next;
 }
 
+/**
+ * Eigenvalues of the row-major n×n `acl` (destroyed), by the same balance → Hessenberg →
+ * eigenvalue-only Francis QR pipeline (same sweep cap) as `eigenvalues`, without its Matrix
+ * round trip. Non-finite input or output goes through `eigenvalues` for its typed error.
+ */
+function closedLoopEigenvalues(acl: Float64Array, n: number): Complex[] {
+  if (!acl.every(Number.isFinite)) return eigenvalues(fromFloat64(acl, n, n));
+  const perm = new Int32Array(n);
+  const scale = new Float64Array(n);
+  const { low, high } = balanceInPlace(acl, n, true, true, perm, scale);
+  reduceToHessenbergInPlace(acl, n, low, high, null);
+  const wr = new Float64Array(n);
+  const wi = new Float64Array(n);
+  for (let i = 0; i < n; i++) if (i < low || i > high) wr[i] = acl[i * n + i]!;
+  francisQRInPlace(acl, n, low, high, false, null, wr, wi, defaultSchurIterationLimit(n));
+  const out: Complex[] = new Array<Complex>(n);
+  for (let i = 0; i < n; i++) {
+    if (!Number.isFinite(wr[i]!) || !Number.isFinite(wi[i]!)) {
+      throw new EngineError("non-finite", `eigenvalue ${i + 1} of A − BK is not finite (overflow during the QR iteration)`, { argument: "A − BK", index: i });
+    }
+    out[i] = { re: wr[i]!, im: wi[i] === 0 ? 0 : wi[i]! };
+  }
+  return out;
+}
+
 function isStable(kind: RiccatiKind, poles: Complex[]): boolean {
   return kind === "continuous" ? poles.every((p) => p.re < 0) : poles.every((p) => Math.hypot(p.re, p.im) < 1);
 }
@@ -186,8 +215,8 @@ export function finishRiccati(
     }
   }
 
-  const kMatrix = fromFloat64(ev.k, m, n);
-  const closedLoopPoles = eigenvalues(fromFloat64(closedLoop(data, ev.k), n, n));
+  const kMatrix = matrixOfRowMajor(ev.k, m, n);
+  const closedLoopPoles = closedLoopEigenvalues(closedLoop(data, ev.k), n);
   if (!isStable(kind, closedLoopPoles)) {
     const worst = kind === "continuous"
       ? Math.max(...closedLoopPoles.map((p) => p.re))
@@ -209,7 +238,7 @@ export function finishRiccati(
   }
   const normX = frobeniusOf(x);
   return {
-    X: fromFloat64(x, n, n),
+    X: matrixOfRowMajor(x, n, n),
     K: kMatrix,
     closedLoopPoles,
     residual: normX > 0 ? ev.residualNorm / normX : ev.residualNorm,

@@ -69,6 +69,28 @@ export function reorderSchur(
   const n = form.T.rows;
   const t = toFloat64(form.T);
   const q = toFloat64(form.Q);
+  const { eigenvalues, selectedCount } = reorderSchurInPlace(t, q, n, select);
+  return {
+    T: fromFloat64(t, n, n),
+    Q: fromFloat64(q, n, n),
+    eigenvalues,
+    iterations: form.iterations,
+    selectedCount,
+  };
+}
+
+/**
+ * Kernel behind `reorderSchur` for callers holding row-major copies: reorders the validated,
+ * finite n×n quasi-triangular `t` and orthogonal `q` in place (same steps, checks and errors
+ * as `reorderSchur`, without the Matrix round trips) and returns the eigenvalues of the
+ * reordered T with the number of selected ones.
+ */
+export function reorderSchurInPlace(
+  t: Float64Array,
+  q: Float64Array,
+  n: number,
+  select: (lambda: Complex) => boolean,
+): { eigenvalues: Complex[]; selectedCount: number } {
   const blocks = readBlocks(t, n);
   // standardise 2×2 blocks (a no-op for blocks produced by realSchur); split real pairs
   let pos = 0;
@@ -145,13 +167,7 @@ export function reorderSchur(
       throw new EngineError("internal", "Schur reordering produced a non-finite entry", { index: i });
     }
   }
-  return {
-    T: fromFloat64(t, n, n),
-    Q: fromFloat64(q, n, n),
-    eigenvalues,
-    iterations: form.iterations,
-    selectedCount,
-  };
+  return { eigenvalues, selectedCount };
 }
 
 /** Block sizes along the diagonal of quasi-triangular T; throws if T is not quasi-triangular. */
