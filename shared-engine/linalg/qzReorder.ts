@@ -222,6 +222,10 @@ function swapAdjacentBlocks(w: PencilWork, j: number, p: number, q: number, infi
   // leaves beta at noise level, possibly above the reporting threshold, so it is reset below.
   const firstInfinite = p === 1 && Math.abs(T[j * n + j]) <= infiniteTol;
   const secondInfinite = q === 1 && Math.abs(T[(j + p) * n + j + p]) <= infiniteTol;
+  if (p === 1 && q === 1 && swapOneByOne(w, j)) {
+    finishSwap(w, j, 1, 1, infiniteTol, firstInfinite, secondInfinite);
+    return;
+  }
   const m = p + q, mm = m * m;
   const { a, b, Qs, Zs, an, bn } = sc;
   for (let r = 0; r < m; r++) {
@@ -270,6 +274,14 @@ function swapAdjacentBlocks(w: PencilWork, j: number, p: number, q: number, infi
     S[(j + r) * n + j + c] = 0;
     T[(j + r) * n + j + c] = 0;
   }
+  finishSwap(w, j, p, q, infiniteTol, firstInfinite, secondInfinite);
+}
+
+/** After a swap: resets noise-level betas of infinite eigenvalues and re-standardises the blocks. */
+function finishSwap(
+  w: PencilWork, j: number, p: number, q: number, infiniteTol: number, firstInfinite: boolean, secondInfinite: boolean,
+): void {
+  const { n, T } = w;
   // Resetting beta ≤ 10·n·ε·‖E‖_F to zero is a perturbation of E within the backward error of qz;
   // the window-relative tolerance would be too strict for graded pencils.
   if (secondInfinite && Math.abs(T[j * n + j]) <= 10 * infiniteTol) T[j * n + j] = 0;
@@ -279,6 +291,103 @@ function swapAdjacentBlocks(w: PencilWork, j: number, p: number, q: number, infi
   else if (T[j * n + j] < 0) negateRow(w, j, j, n);
   if (p === 2) standardizeBlock2(w, j + q, 0, n);
   else if (T[(j + q) * n + j + q] < 0) negateRow(w, j + q, j + q, n);
+}
+
+/**
+ * Direct swap of two adjacent 1×1 blocks at rows/columns j, j+1 (the n1 = n2 = 1 case of
+ * Kågström & Poromaa 1996): the right rotation's first column is the eigenvector of the lower
+ * eigenvalue (s22, t22), z1 ∝ [g, −f] with f = s22·t11 − t22·s11, g = s22·t12 − t22·s12; the
+ * left rotation then zeroes the (2,1) entry of whichever of S·Z, T·Z has the larger first column
+ * (|s22·t11| vs |s11·t22|; the two columns are parallel in exact arithmetic). The swap is applied
+ * only if it passes the same weak and strong stability tests as the general path (tolerance
+ * 100·ε·‖window‖_F); otherwise nothing is changed and false is returned (the caller falls back
+ * to the Sylvester construction, which may refuse the swap).
+ */
+function swapOneByOne(w: PencilWork, j: number): boolean {
+  const { n, S, T } = w;
+  const o0 = j * n + j, o1 = o0 + n;
+  const s11 = S[o0], s12 = S[o0 + 1], s22 = S[o1 + 1];
+  const t11 = T[o0], t12 = T[o0 + 1], t22 = T[o1 + 1];
+  const f = s22 * t11 - t22 * s11, g = s22 * t12 - t22 * s12;
+  // Zs = [[zc, zs], [−zs, zc]] (columns: new basis), zc = g/r, zs = f/r.
+  let zc = 1, zs = 0;
+  const r = Math.hypot(f, g);
+  if (r > 0) { zc = g / r; zs = f / r; }
+  // First columns of S·Zs and T·Zs.
+  const sx0 = s11 * zc - s12 * zs, sx1 = -s22 * zs;
+  const tx0 = t11 * zc - t12 * zs, tx1 = -t22 * zs;
+  // Qs = [[qc, −qs], [qs, qc]] with first column parallel to the larger of the two columns.
+  const useS = Math.abs(s22) * Math.abs(t11) >= Math.abs(s11) * Math.abs(t22);
+  const x0 = useS ? sx0 : tx0, x1 = useS ? sx1 : tx1;
+  let qc = 1, qs = 0;
+  const h = Math.hypot(x0, x1);
+  if (h > 0) { qc = x0 / h; qs = x1 / h; }
+  // Stability tests exactly as the general path, on the 2×2 window.
+  const normA = Math.hypot(s11, s12, s22), normB = Math.hypot(t11, t12, t22);
+  const tolA = Math.max(100 * ULP * normA, SAFE_MIN), tolB = Math.max(100 * ULP * normB, SAFE_MIN);
+  const sy1 = s11 * zs + s12 * zc, sy2 = s22 * zc; // second column of S·Zs
+  const ty1 = t11 * zs + t12 * zc, ty2 = t22 * zc;
+  // Qsᵀ·(S·Zs): rows [qc, qs], [−qs, qc].
+  const a11 = qc * sx0 + qs * sx1, a12 = qc * sy1 + qs * sy2, a21 = qc * sx1 - qs * sx0, a22 = qc * sy2 - qs * sy1;
+  const b11 = qc * tx0 + qs * tx1, b12 = qc * ty1 + qs * ty2, b21 = qc * tx1 - qs * tx0, b22 = qc * ty2 - qs * ty1;
+  const weak = Math.max(Math.abs(a21) / tolA, Math.abs(b21) / tolB);
+  const strong = Math.max(
+    reconstruction2(qc, qs, zc, zs, a11, a12, a22, s11, s12, 0, s22) / tolA,
+    reconstruction2(qc, qs, zc, zs, b11, b12, b22, t11, t12, 0, t22) / tolB,
+  );
+  if (!(weak <= 1 && strong <= 1)) return false;
+
+  // Columns j, j+1 of S, T (rows 0..j+1) ← (those columns)·Zs.
+  for (let k = 0, o = j; k <= j + 1; k++, o += n) {
+    const u = S[o], v = S[o + 1];
+    S[o] = zc * u - zs * v;
+    S[o + 1] = zs * u + zc * v;
+    const x = T[o], y = T[o + 1];
+    T[o] = zc * x - zs * y;
+    T[o + 1] = zs * x + zc * y;
+  }
+  // Rows j, j+1 of S, T (columns j..n−1) ← Qsᵀ·(those rows).
+  for (let c = j; c < n; c++) {
+    const u = S[j * n + c], v = S[(j + 1) * n + c];
+    S[j * n + c] = qc * u + qs * v;
+    S[(j + 1) * n + c] = qc * v - qs * u;
+    const x = T[j * n + c], y = T[(j + 1) * n + c];
+    T[j * n + c] = qc * x + qs * y;
+    T[(j + 1) * n + c] = qc * y - qs * x;
+  }
+  S[o1] = 0;
+  T[o1] = 0;
+  const QT = w.QT, ZT = w.ZT!;
+  const r0 = j * n, r1 = r0 + n;
+  if (QT) {
+    for (let c = 0; c < n; c++) {
+      const u = QT[r0 + c], v = QT[r1 + c];
+      QT[r0 + c] = qc * u + qs * v;
+      QT[r1 + c] = qc * v - qs * u;
+    }
+  }
+  // Zᵀ rows ← Zsᵀ·(those rows).
+  for (let c = 0; c < n; c++) {
+    const u = ZT[r0 + c], v = ZT[r1 + c];
+    ZT[r0 + c] = zc * u - zs * v;
+    ZT[r1 + c] = zs * u + zc * v;
+  }
+  return true;
+}
+
+/**
+ * ‖Qs·[[m11, m12], [0, m22]]·Zsᵀ − [[o11, o12], [o21, o22]]‖_F for Qs = [[qc, −qs], [qs, qc]],
+ * Zs = [[zc, zs], [−zs, zc]] (the strong stability test of a 1×1 swap).
+ */
+function reconstruction2(
+  qc: number, qs: number, zc: number, zs: number, m11: number, m12: number, m22: number,
+  o11: number, o12: number, o21: number, o22: number,
+): number {
+  const p11 = qc * m11, p12 = qc * m12 - qs * m22, p21 = qs * m11, p22 = qs * m12 + qc * m22; // Qs·M
+  // (Qs·M)·Zsᵀ, Zsᵀ = [[zc, −zs], [zs, zc]].
+  const d11 = p11 * zc + p12 * zs - o11, d12 = -p11 * zs + p12 * zc - o12;
+  const d21 = p21 * zc + p22 * zs - o21, d22 = -p21 * zs + p22 * zc - o22;
+  return Math.hypot(d11, d12, d21, d22);
 }
 
 /**

@@ -503,3 +503,89 @@ describe("qzRowMajor and reorderQzRowMajor (the row-major internal entry points)
     expect(kindOf(() => reorderQzRowMajor(qzRowMajor(a, e, 2), 3 as never))).toBe("invalid-argument");
   });
 });
+
+describe("reorderQz swaps of adjacent 1×1 blocks (direct rotation construction)", () => {
+  const I = (n: number): Matrix => Matrix.eye(n);
+  /** A triangular pencil (S, T) as a form with Q = Z = I, so (A, E) = (S, T). */
+  function triangularForm(S: Matrix, T: Matrix): GeneralizedSchurForm {
+    return { S, T, Q: I(S.rows), Z: I(S.rows), eigenvalues: [], iterations: 0 };
+  }
+  /** λ_i = s_ii / t_ii (null when t_ii = 0) in the order the diagonal holds them. */
+  const diagonalValues = (S: Matrix, T: Matrix): (number | null)[] =>
+    Array.from({ length: S.rows }, (_, i) => (T.get(i, i) === 0 ? null : S.get(i, i) / T.get(i, i)));
+
+  function expectSwappedOrder(S: Matrix, T: Matrix, select: (v: number | null) => boolean, what: string): void {
+    const before = diagonalValues(S, T);
+    const r = reorderQz(triangularForm(S, T), (ev) => select(ev.infinite ? null : ev.value!.re));
+    expectValidForm(S, T, r, what);
+    const expected = [...before.filter((v) => select(v)), ...before.filter((v) => !select(v))];
+    expect(r.selectedCount, `${what}: selectedCount`).toBe(before.filter((v) => select(v)).length);
+    const scale = Math.max(1, ...before.map((v) => (v === null ? 0 : Math.abs(v))));
+    expected.forEach((v, j) => {
+      const ev = r.eigenvalues[j]!;
+      if (v === null) {
+        expect(ev.infinite, `${what}: eigenvalue ${j} infinite`).toBe(true);
+        expect(r.T.get(j, j), `${what}: beta ${j} kept exactly zero`).toBe(0);
+      } else {
+        expect(ev.infinite, `${what}: eigenvalue ${j} finite`).toBe(false);
+        expect(ev.value!.im).toBe(0);
+        // Eigenvalue conditioning: 1e-9 relative is far above ε·cond for the separations used.
+        expectAtMost(Math.abs(ev.value!.re - v), 1e-9 * scale, `${what}: eigenvalue ${j} = ${v}`);
+      }
+    });
+  }
+
+  it("swaps a 2×2 triangular pencil's eigenvalues, infinite ones and a nearly equal pair included", () => {
+    // Hand-made pencils (common practice): distinct, nearly equal (gap 1e-7), infinite first, zero alpha.
+    const pencils: [number[][], number[][], (v: number | null) => boolean][] = [
+      [[[3, 1], [0, -2]], [[1, 0.5], [0, 1]], (v) => v !== null && v < 0],
+      [[[1 + 1e-7, 2], [0, 1 - 1e-7]], [[1, -1], [0, 1]], (v) => v !== null && v < 1],
+      [[[1, 4], [0, 2]], [[0, 3], [0, 0.5]], (v) => v !== null],
+      [[[0, 1], [0, 5]], [[2, 1], [0, 1]], (v) => v !== null && v > 1],
+      [[[2, -3], [0, 7]], [[1e-3, 2], [0, 4]], (v) => v !== null && v < 100],
+    ];
+    pencils.forEach(([s, t, select], k) => expectSwappedOrder(new Matrix(s), new Matrix(t), select, `2×2 pencil ${k}`));
+  });
+
+  it("gives a valid generalized Schur form with the eigenvalues reordered on random triangular pencils (fast-check)", () => {
+    // Diagonal kinds: 0 finite λ = ±(k + 0.5)/2, 1 nearly equal λ = ±1e-6 (across the
+    // selection boundary 0), 2 infinite (beta = 0). Off-diagonal entries: integers / 7.
+    const diag = fc.tuple(fc.integer({ min: 0, max: 2 }), fc.integer({ min: -12, max: 12 }), fc.integer({ min: 1, max: 20 }));
+    const pencil = fc.integer({ min: 2, max: 9 }).chain((n) =>
+      fc.tuple(
+        fc.constant(n),
+        fc.array(diag, { minLength: n, maxLength: n }),
+        fc.array(fc.integer({ min: -30, max: 30 }), { minLength: n * n, maxLength: n * n }),
+        fc.array(fc.integer({ min: -30, max: 30 }), { minLength: n * n, maxLength: n * n }),
+        fc.boolean(),
+      ));
+    fc.assert(
+      fc.property(pencil, ([n, d, so, to, negativeFirst]) => {
+        const S = new Matrix(n, n), T = new Matrix(n, n);
+        for (let i = 0; i < n; i++) {
+          for (let j = i + 1; j < n; j++) { S.set(i, j, so[i * n + j]! / 7); T.set(i, j, to[i * n + j]! / 7); }
+          const [kind, k, b] = d[i]!;
+          const beta = b / 4;
+          const lambda = kind === 1 ? (k >= 0 ? 1e-6 : -1e-6) : (k >= 0 ? k + 0.5 : k - 0.5) / 2;
+          T.set(i, i, kind === 2 ? 0 : beta);
+          S.set(i, i, kind === 2 ? (k >= 0 ? beta : -beta) : lambda * beta);
+        }
+        const select = (v: number | null): boolean => v !== null && (negativeFirst ? v < 0 : v > 0);
+        expectSwappedOrder(S, T, select, `n=${n}`);
+      }),
+      { seed: 20261202, numRuns: 300 },
+    );
+  });
+
+  it("reverses the whole diagonal of a 12×12 triangular pencil through 66 swaps, keeping the bounds", () => {
+    // λ_i = i + 1 on the diagonal; moving 1, 2, ..., n to the front in turn reverses the order.
+    const n = 12;
+    const S = seededMatrix(n, 4242), T = seededMatrix(n, 777);
+    for (let i = 0; i < n; i++) for (let j = 0; j < i; j++) { S.set(i, j, 0); T.set(i, j, 0); }
+    for (let i = 0; i < n; i++) { T.set(i, i, 1 + i / n); S.set(i, i, (i + 1) * (1 + i / n)); }
+    let form = triangularForm(S, T);
+    for (let k = 1; k <= n; k++) form = reorderQz(form, (ev) => Math.abs(ev.value!.re - k) < 0.5);
+    expectValidForm(S, T, form, "reversed");
+    form.eigenvalues.forEach((ev, j) => expectAtMost(Math.abs(ev.value!.re - (n - j)), 1e-10 * n, `eigenvalue ${j}`));
+  });
+});
