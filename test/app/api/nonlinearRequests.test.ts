@@ -3,45 +3,10 @@
 // (the Torricelli tank and the pendulum of test/engine/nonlinear/plantModels.ts, and a scalar
 // linear lag worked by hand), plus field-named parameter errors, progress and cancellation.
 import { describe, expect, it } from "vitest";
-import { dispatch, type EngineMethod, type EngineResult, type RequestContext } from "../../../shared-engine/api";
-import { EngineError } from "../../../shared-engine/errors";
+import { call, expectMonotonicFractions, failure, recorder } from "./requestHelpers";
 import { expectAtMost, expectComplexSetsClose, expectMatrixClose, expectRelativeClose } from "../../helpers/assertions";
 import { pendulum, tank } from "../../engine/nonlinear/plantModels";
 
-async function call<M extends EngineMethod>(method: M, params: unknown, context?: RequestContext): Promise<EngineResult<M>> {
-  const result = (await dispatch(method, params, context)) as EngineResult<M>;
-  expect(JSON.parse(JSON.stringify(result))).toEqual(result);
-  return result;
-}
-
-async function failure(method: string, params: unknown, context?: RequestContext): Promise<EngineError> {
-  try {
-    await dispatch(method, params, context);
-  } catch (error) {
-    expect(error).toBeInstanceOf(EngineError);
-    return error as EngineError;
-  }
-  throw new Error(`${method} was expected to fail`);
-}
-
-/** Records progress fractions; cancels once `cancelAfter` reports have arrived (never when undefined). */
-function recorder(cancelAfter?: number): { context: RequestContext; fractions: number[] } {
-  const fractions: number[] = [];
-  return {
-    fractions,
-    context: { isCancelled: () => cancelAfter !== undefined && fractions.length >= cancelAfter, reportProgress: (p) => fractions.push(p.fraction) },
-  };
-}
-
-function expectMonotonicFractions(fractions: number[]): void {
-  expect(fractions.length).toBeGreaterThan(1);
-  fractions.forEach((f, i) => {
-    expect(f).toBeGreaterThanOrEqual(0);
-    expect(f).toBeLessThanOrEqual(1);
-    if (i > 0) expect(f).toBeGreaterThanOrEqual(fractions[i - 1]!);
-  });
-  expect(fractions[fractions.length - 1]).toBe(1);
-}
 
 const [TANK_AREA, TANK_OUTLET, GRAVITY] = [2, 0.01, 9.81];
 

@@ -3,43 +3,9 @@
 // benchmark solution carried over by a change of coordinates), bad params with field names,
 // progress monotonic in [0, 1] and cancellation after the first progress report.
 import { describe, expect, it } from "vitest";
-import { dispatch, type EngineMethod, type EngineResult, type RequestContext } from "../../../shared-engine/api";
-import { EngineError } from "../../../shared-engine/errors";
+import { call, expectMonotonicFractions, failure, recorder } from "./requestHelpers";
 import { expectAtMost, expectComplexSetsClose, expectMatrixClose, expectRelativeClose } from "../../helpers/assertions";
 
-async function call<M extends EngineMethod>(method: M, params: unknown, context?: RequestContext): Promise<EngineResult<M>> {
-  const result = (await dispatch(method, params, context)) as EngineResult<M>;
-  expect(JSON.parse(JSON.stringify(result))).toEqual(result);
-  return result;
-}
-
-async function failure(method: string, params: unknown, context?: RequestContext): Promise<EngineError> {
-  try {
-    await dispatch(method, params, context);
-  } catch (error) {
-    expect(error).toBeInstanceOf(EngineError);
-    return error as EngineError;
-  }
-  throw new Error(`${method} was expected to fail`);
-}
-
-function recorder(cancelAfter?: number): { context: RequestContext; fractions: number[] } {
-  const fractions: number[] = [];
-  return {
-    fractions,
-    context: { isCancelled: () => cancelAfter !== undefined && fractions.length >= cancelAfter, reportProgress: (p) => fractions.push(p.fraction) },
-  };
-}
-
-function expectMonotonicFractions(fractions: number[]): void {
-  expect(fractions.length).toBeGreaterThan(2);
-  fractions.forEach((f, i) => {
-    expect(f).toBeGreaterThanOrEqual(0);
-    expect(f).toBeLessThanOrEqual(1);
-    if (i > 0) expect(f).toBeGreaterThanOrEqual(fractions[i - 1]!);
-  });
-  expect(fractions[fractions.length - 1]).toBe(1);
-}
 
 const re = (...values: number[]) => values.map((v) => ({ re: v, im: 0 }));
 const LAG = { A: [[-1]], B: [[1]], C: [[1]] };
@@ -123,7 +89,7 @@ describe("analysis.lqrWeightLocus and analysis.observerSpeedLocus", () => {
     expect(r.rho.length).toBeGreaterThanOrEqual(21);
     r.rho.forEach((rho, k) => expectRelativeClose(r.branches[0]![k]!.re, -Math.sqrt(1 + 1 / rho), 1e-12, `pole at ρ = ${rho}`));
     expect(r.symmetricRootLocus).toBe(true);
-    expectMonotonicFractions(fractions);
+    expectMonotonicFractions(fractions, 2);
   });
 
   it("follows the Butterworth pattern ρ^(−1/4)·e^(±3πj/4) for the double integrator with Q = diag(1, 0)", async () => {
@@ -154,7 +120,7 @@ describe("analysis.lqrWeightLocus and analysis.observerSpeedLocus", () => {
     });
     expect(r.factors[0]).toBe(0.5);
     expect(r.factors[r.factors.length - 1]).toBe(3);
-    expectMonotonicFractions(fractions);
+    expectMonotonicFractions(fractions, 2);
   });
 
   it("stops the observer speed locus with kind cancelled after the first progress report", async () => {
@@ -170,7 +136,7 @@ describe("analysis.rootLocus progress", () => {
   it("reports progress from the tracing, monotonic in [0, 1]", async () => {
     const { context, fractions } = recorder();
     await call("analysis.rootLocus", { model: loop }, context);
-    expectMonotonicFractions(fractions);
+    expectMonotonicFractions(fractions, 2);
     expect(fractions.filter((f) => f > 0 && f < 1).length).toBeGreaterThan(3);
   });
 
