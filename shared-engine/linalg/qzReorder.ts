@@ -234,7 +234,7 @@ function swapAdjacentBlocks(w: PencilWork, j: number, p: number, q: number, infi
       b[r * m + c] = T[(j + r) * n + j + c];
     }
   }
-  const normA = frobeniusNorm(a.subarray(0, mm)), normB = frobeniusNorm(b.subarray(0, mm));
+  const normA = windowNorm(a, mm), normB = windowNorm(b, mm);
   // Stability tolerance of the swap: Kågström & Poromaa use 10–20·ε·‖window‖; 100 leaves
   // room for the unscaled Kronecker solve while still bounding the perturbation locally.
   const tolA = Math.max(100 * ULP * normA, SAFE_MIN), tolB = Math.max(100 * ULP * normB, SAFE_MIN);
@@ -249,12 +249,12 @@ function swapAdjacentBlocks(w: PencilWork, j: number, p: number, q: number, infi
 
   // Stability tests on the small window (weak: the new (2,1) blocks are small; strong: the
   // window is reproduced with those blocks zeroed).
-  similarity(Qs, a, Zs, m, an, sc.tmp);
-  similarity(Qs, b, Zs, m, bn, sc.tmp);
+  similarityPair(Qs, a, b, Zs, m, p, an, bn, sc.tmp, sc.diff);
   const weak = Math.max(lowerBlockNorm(an, m, q) / tolA, lowerBlockNorm(bn, m, q) / tolB);
   zeroLowerBlock(an, m, q);
   zeroLowerBlock(bn, m, q);
-  const strong = Math.max(reconstructionError(Qs, an, Zs, a, m, sc) / tolA, reconstructionError(Qs, bn, Zs, b, m, sc) / tolB);
+  reconstructionPair(Qs, an, bn, Zs, a, b, m, q, sc.tmp, sc.diff);
+  const strong = Math.max(windowNorm(sc.tmp, m * m) / tolA, windowNorm(sc.diff, m * m) / tolB);
   if (!(weak <= 1 && strong <= 1)) {
     throw new EngineError(
       "singular",
@@ -417,16 +417,23 @@ function solveCompletePivoting(K: Float64Array, rhs: Float64Array, N: number, sc
   const colPerm = sc.colPerm;
   for (let i = 0; i < N; i++) colPerm[i] = i;
   let maxAbs = 0;
-  for (let k = 0; k < N * N; k++) maxAbs = Math.max(maxAbs, Math.abs(K[k]));
+  for (let k = 0; k < N * N; k++) {
+    const v = Math.abs(K[k]);
+    if (v > maxAbs) maxAbs = v;
+  }
   const smin = Math.max(ULP * maxAbs, SAFE_MIN);
   for (let k = 0; k < N; k++) {
     let pr = k, pc = k, best = -1;
-    for (let r = k; r < N; r++) for (let c = k; c < N; c++) {
-      const v = Math.abs(K[r * N + c]);
-      if (v > best) { best = v; pr = r; pc = c; }
+    for (let r = k; r < N; r++) {
+      const or = r * N;
+      for (let c = k; c < N; c++) {
+        const v = Math.abs(K[or + c]);
+        if (v > best) { best = v; pr = r; pc = c; }
+      }
     }
     if (pr !== k) {
-      for (let c = 0; c < N; c++) { const t = K[k * N + c]; K[k * N + c] = K[pr * N + c]; K[pr * N + c] = t; }
+      // Columns < k of rows ≥ k hold stale multipliers that are never read again.
+      for (let c = k; c < N; c++) { const t = K[k * N + c]; K[k * N + c] = K[pr * N + c]; K[pr * N + c] = t; }
       const t = rhs[k]; rhs[k] = rhs[pr]; rhs[pr] = t;
     }
     if (pc !== k) {
@@ -435,10 +442,12 @@ function solveCompletePivoting(K: Float64Array, rhs: Float64Array, N: number, sc
     }
     if (Math.abs(K[k * N + k]) < smin) K[k * N + k] = smin;
     const piv = K[k * N + k];
+    const ok = k * N;
     for (let r = k + 1; r < N; r++) {
-      const f = K[r * N + k] / piv;
+      const or = r * N;
+      const f = K[or + k] / piv;
       if (f === 0) continue;
-      for (let c = k; c < N; c++) K[r * N + c] -= f * K[k * N + c];
+      for (let c = k; c < N; c++) K[or + c] -= f * K[ok + c];
       rhs[r] -= f * rhs[k];
     }
   }
@@ -468,12 +477,20 @@ function completeOrthogonal(x: Float64Array, m: number, q: number, U: Float64Arr
   U.fill(0, 0, m * m);
   for (let i = 0; i < m; i++) U[i * m + i] = 1;
   for (let k = 0; k < q; k++) {
-    let norm = 0;
-    for (let i = k; i < m; i++) norm = Math.hypot(norm, x[i * q + k]);
-    if (norm === 0) continue;
+    let scale = 0;
+    for (let i = k; i < m; i++) {
+      const a = Math.abs(x[i * q + k]);
+      if (a > scale || a !== a) scale = a; // NaN propagates, as through Math.hypot
+    }
+    if (scale === 0) continue;
+    let sum = 0;
+    for (let i = k; i < m; i++) {
+      const a = x[i * q + k] / scale;
+      sum += a * a;
+    }
+    const norm = scale * Math.sqrt(sum);
     const alpha = x[k * q + k];
     const beta = alpha >= 0 ? -norm : norm;
-    v.fill(0, 0, m);
     v[k] = 1;
     for (let i = k + 1; i < m; i++) v[i] = x[i * q + k] / (alpha - beta);
     const tau = (beta - alpha) / beta;
@@ -483,48 +500,120 @@ function completeOrthogonal(x: Float64Array, m: number, q: number, U: Float64Arr
       for (let i = k; i < m; i++) s += v[i] * x[i * q + c];
       for (let i = k; i < m; i++) x[i * q + c] -= tau * v[i] * s;
     }
+    // U ← U·H on columns k..m−1 ((tau·s)·v[i] as before, hoisted).
     for (let r = 0; r < m; r++) {
+      const or = r * m;
       let s = 0;
-      for (let i = k; i < m; i++) s += U[r * m + i] * v[i];
-      for (let i = k; i < m; i++) U[r * m + i] -= tau * s * v[i];
+      for (let i = k; i < m; i++) s += U[or + i] * v[i];
+      if (s === 0) continue; // the update would subtract exact zeros
+      const ts = tau * s;
+      for (let i = k; i < m; i++) U[or + i] -= ts * v[i];
     }
   }
 }
 
-/** out = Uᵀ·M·V for m×m row-major matrices (`tmp` scratch). */
-function similarity(U: Float64Array, M: Float64Array, V: Float64Array, m: number, out: Float64Array, tmp: Float64Array): void {
+/**
+ * outA = Uᵀ·A·V and outB = Uᵀ·B·V for m×m row-major windows whose lower-left (m−p)×p block is
+ * zero (both products in one pass; the known-zero terms are skipped, which changes no rounding).
+ * `ta`, `tb` are scratch.
+ */
+function similarityPair(
+  U: Float64Array, A: Float64Array, B: Float64Array, V: Float64Array, m: number, p: number,
+  outA: Float64Array, outB: Float64Array, ta: Float64Array, tb: Float64Array,
+): void {
   for (let i = 0; i < m; i++) for (let j = 0; j < m; j++) {
-    let s = 0;
-    for (let k = 0; k < m; k++) s += U[k * m + i] * M[k * m + j];
-    tmp[i * m + j] = s;
+    const kEnd = j < p ? p : m;
+    let sa = 0, sb = 0;
+    for (let k = 0; k < kEnd; k++) {
+      const u = U[k * m + i];
+      sa += u * A[k * m + j];
+      sb += u * B[k * m + j];
+    }
+    ta[i * m + j] = sa;
+    tb[i * m + j] = sb;
   }
   for (let i = 0; i < m; i++) for (let j = 0; j < m; j++) {
-    let s = 0;
-    for (let k = 0; k < m; k++) s += tmp[i * m + k] * V[k * m + j];
-    out[i * m + j] = s;
+    let sa = 0, sb = 0;
+    for (let k = 0; k < m; k++) {
+      const v = V[k * m + j];
+      sa += ta[i * m + k] * v;
+      sb += tb[i * m + k] * v;
+    }
+    outA[i * m + j] = sa;
+    outB[i * m + j] = sb;
   }
 }
 
-/** ‖U·M·Vᵀ − M0‖_F for m×m row-major matrices. */
-function reconstructionError(U: Float64Array, M: Float64Array, V: Float64Array, M0: Float64Array, m: number, sc: SwapScratch): number {
-  const tmp = sc.tmp, diff = sc.diff;
+/**
+ * The residuals of the strong stability test for both matrices in one pass: dA = U·MA·Vᵀ − A0
+ * and dB = U·MB·Vᵀ − B0 (m×m row-major; MA, MB have their lower-left (m−q)×q block zeroed,
+ * whose terms are skipped). dA, dB also serve as scratch for the products U·MA, U·MB, so each
+ * product is formed once.
+ */
+function reconstructionPair(
+  U: Float64Array, MA: Float64Array, MB: Float64Array, V: Float64Array, A0: Float64Array, B0: Float64Array,
+  m: number, q: number, dA: Float64Array, dB: Float64Array,
+): void {
+  const pa = prodA, pb = prodB;
   for (let i = 0; i < m; i++) for (let j = 0; j < m; j++) {
-    let s = 0;
-    for (let k = 0; k < m; k++) s += U[i * m + k] * M[k * m + j];
-    tmp[i * m + j] = s;
+    const kEnd = j < q ? q : m;
+    let sa = 0, sb = 0;
+    for (let k = 0; k < kEnd; k++) {
+      const u = U[i * m + k];
+      sa += u * MA[k * m + j];
+      sb += u * MB[k * m + j];
+    }
+    pa[i * m + j] = sa;
+    pb[i * m + j] = sb;
   }
   for (let i = 0; i < m; i++) for (let j = 0; j < m; j++) {
-    let s = 0;
-    for (let k = 0; k < m; k++) s += tmp[i * m + k] * V[j * m + k];
-    diff[i * m + j] = s - M0[i * m + j];
+    let sa = 0, sb = 0;
+    for (let k = 0; k < m; k++) {
+      const v = V[j * m + k];
+      sa += pa[i * m + k] * v;
+      sb += pb[i * m + k] * v;
+    }
+    dA[i * m + j] = sa - A0[i * m + j];
+    dB[i * m + j] = sb - B0[i * m + j];
   }
-  return frobeniusNorm(diff.subarray(0, m * m));
 }
 
+// Products of the strong test (at most 4×4), module-level so no swap allocates.
+const prodA = new Float64Array(16), prodB = new Float64Array(16);
+
+/**
+ * Frobenius norm of the first `len` entries of M, with the same scaled sum of squares as
+ * `frobeniusNorm` (no subarray view, no Math.hypot: these run several times per swap).
+ */
+function windowNorm(M: Float64Array, len: number): number {
+  let scale = 0;
+  for (let k = 0; k < len; k++) {
+    const v = Math.abs(M[k]);
+    if (v > scale || v !== v) scale = v; // NaN propagates, as through Math.max/Math.hypot
+  }
+  if (scale === 0 || !Number.isFinite(scale)) return scale;
+  let sum = 0;
+  for (let k = 0; k < len; k++) {
+    const v = M[k] / scale;
+    sum += v * v;
+  }
+  return scale * Math.sqrt(sum);
+}
+
+/** Frobenius norm of the lower-left (m−q)×q block (scaled sum of squares, no Math.hypot). */
 function lowerBlockNorm(M: Float64Array, m: number, q: number): number {
-  let s = 0;
-  for (let r = q; r < m; r++) for (let c = 0; c < q; c++) s = Math.hypot(s, M[r * m + c]);
-  return s;
+  let scale = 0;
+  for (let r = q; r < m; r++) for (let c = 0; c < q; c++) {
+    const v = Math.abs(M[r * m + c]);
+    if (v > scale || v !== v) scale = v; // NaN propagates, as through Math.max/Math.hypot
+  }
+  if (scale === 0 || !Number.isFinite(scale)) return scale;
+  let sum = 0;
+  for (let r = q; r < m; r++) for (let c = 0; c < q; c++) {
+    const v = M[r * m + c] / scale;
+    sum += v * v;
+  }
+  return scale * Math.sqrt(sum);
 }
 
 function zeroLowerBlock(M: Float64Array, m: number, q: number): void {
