@@ -204,12 +204,12 @@ export function structure(model: StateSpace, tol?: number): StructureReport {
   if (tol !== undefined) checkTolerance(tol, "tol");
   const discrete = model.sampleTime !== null;
   const stabilityBand = stabilityTolerance(A);
-  const ctrb = controllabilityStaircase(A, B, tol);
-  const obsv = controllabilityStaircase(A.transpose(), C.transpose(), tol);
-  const nc = ctrb.controllableDimension;
-  const no = obsv.controllableDimension;
-  const uncontrollableModes = nc < n ? eigenvalues(subBlock(ctrb.A, nc, n, nc, n)) : [];
-  const unobservableModes = no < n ? eigenvalues(subBlock(obsv.A, no, n, no, n)) : [];
+  const controllableStair = controllabilityStaircase(A, B, tol);
+  const observableStair = controllabilityStaircase(A.transpose(), C.transpose(), tol);
+  const nc = controllableStair.controllableDimension;
+  const no = observableStair.controllableDimension;
+  const uncontrollableModes = nc < n ? eigenvalues(subBlock(controllableStair.A, nc, n, nc, n)) : [];
+  const unobservableModes = no < n ? eigenvalues(subBlock(observableStair.A, no, n, no, n)) : [];
   const notStable = (l: Complex): boolean => boundaryDistance(l, discrete) >= -stabilityBand;
   const unstableUncontrollableModes = uncontrollableModes.filter(notStable);
   const unstableUnobservableModes = unobservableModes.filter(notStable);
@@ -224,6 +224,6 @@ export function structure(model: StateSpace, tol?: number): StructureReport {
     unstableUnobservableModes,
     controllableDimension: nc,
     observableDimension: no,
-    tolerance: { controllability: ctrb.tolerance, observability: obsv.tolerance, stability: stabilityBand },
+    tolerance: { controllability: controllableStair.tolerance, observability: observableStair.tolerance, stability: stabilityBand },
   };
 }
