@@ -9,6 +9,7 @@
  *     reports them (the dispatcher checks every result before returning it);
  *   - every result carries `diagnostics` (residual, conditioning, warnings) in one shape.
  */
+import type { LoopMargins } from "../analysis/margins";
 
 export interface ComplexValue {
   re: number;
@@ -203,30 +204,8 @@ export interface MarginsParams extends ModelParams {
   frequenciesRadPerSec?: number[];
 }
 
-export interface MarginsResult {
-  gainCrossoversRadPerSec: number[];
-  phaseCrossoversRadPerSec: number[];
-  gainMargins: { frequencyRadPerSec: number; gainDb: number }[];
-  phaseMargins: { frequencyRadPerSec: number; phaseDeg: number }[];
-  gainMarginDb: number | null;
-  phaseMarginDeg: number | null;
-  gainCrossoverRadPerSec: number | null;
-  phaseCrossoverRadPerSec: number | null;
-  delayMarginSec: number | null;
-  delayMarginSamples: number | null;
-  sensitivityPeak: { value: number; frequencyRadPerSec: number };
-  complementarySensitivityPeak: { value: number; frequencyRadPerSec: number };
-  closedLoopBandwidthRadPerSec: number | null;
-  diskMargin: {
-    alpha: number;
-    gainRange: [number, number | null];
-    gainRangeDb: [number | null, number | null];
-    phaseDeg: number;
-    frequencyRadPerSec: number;
-  };
-  closedLoopStable: boolean;
-  diagnostics: Diagnostics;
-}
+/** The engine's loop margins (analysis/margins.ts), its warnings moved into `diagnostics`. */
+export type MarginsResult = Omit<LoopMargins, "warnings"> & { diagnostics: Diagnostics };
 
 export interface StepParams extends ModelParams {
   /** 0-based input (or disturbance) index stepped (default 0). */
