@@ -3,6 +3,7 @@
  * error, so a failure says how far off a result was, not just that it was.
  */
 import { expect } from "vitest";
+import { EngineError } from "../../shared-engine/errors";
 
 export const EPS = Number.EPSILON;
 
@@ -185,4 +186,23 @@ export function expectDeepClose(actual: unknown, expected: unknown, relTol = 1e-
     return;
   }
   expect(actual, path).toEqual(expected);
+}
+
+/**
+ * Runs `fn` and expects it to throw an EngineError of `kind` (the message is the assertion's
+ * label, so a wrong kind shows what was thrown), optionally with a message matching
+ * `messagePart` and a `details.reason`. Returns the error for further checks.
+ */
+export function expectEngineError(fn: () => unknown, kind: string, messagePart?: RegExp, reason?: string): EngineError {
+  try {
+    fn();
+  } catch (error) {
+    expect(error).toBeInstanceOf(EngineError);
+    const e = error as EngineError;
+    expect(e.kind, e.message).toBe(kind);
+    if (messagePart) expect(e.message).toMatch(messagePart);
+    if (reason !== undefined) expect(e.details.reason).toBe(reason);
+    return e;
+  }
+  return expect.fail(`expected an EngineError of kind ${kind}`);
 }

@@ -1,22 +1,9 @@
 import { describe, expect, it } from "vitest";
 import fc from "fast-check";
-import { EngineError } from "../../../shared-engine/errors";
 import { eigenvalues } from "../../../shared-engine/linalg";
 import { parameterLocus } from "../../../shared-engine/analysis/parameterLocus";
 import { matchPoles } from "../../../shared-engine/analysis/poleTracker";
-import { expectAtMost, expectComplexSetsClose, expectRelativeClose } from "../../helpers/assertions";
-
-function expectKind(run: () => unknown, kind: string, messagePart?: RegExp): void {
-  try {
-    run();
-  } catch (error) {
-    expect(error).toBeInstanceOf(EngineError);
-    expect((error as EngineError).kind).toBe(kind);
-    if (messagePart) expect((error as EngineError).message).toMatch(messagePart);
-    return;
-  }
-  expect.fail(`expected an EngineError of kind ${kind}`);
-}
+import { expectAtMost, expectComplexSetsClose, expectRelativeClose, expectEngineError as expectKind } from "../../helpers/assertions";
 
 describe("parameterLocus", () => {
   it("traces s² + 2s + k over k ∈ [0, 2]: roots −1 ± √(1 − k), meeting at k = 1 (closed form)", () => {

@@ -1,21 +1,8 @@
 import { describe, expect, it } from "vitest";
 import { createStateSpace } from "../../../shared-engine/model";
-import { EngineError } from "../../../shared-engine/errors";
 import { responseMetrics } from "../../../shared-engine/analysis/responseMetrics";
 import { impulseResponse, stepResponse } from "../../../shared-engine/analysis/timeResponse";
-import { expectAtMost, expectRelativeClose } from "../../helpers/assertions";
-
-function expectKind(run: () => unknown, kind: string, messagePart?: RegExp): void {
-  try {
-    run();
-  } catch (error) {
-    expect(error).toBeInstanceOf(EngineError);
-    expect((error as EngineError).kind).toBe(kind);
-    if (messagePart) expect((error as EngineError).message).toMatch(messagePart);
-    return;
-  }
-  expect.fail(`expected an EngineError of kind ${kind}`);
-}
+import { expectAtMost, expectRelativeClose, expectEngineError as expectKind } from "../../helpers/assertions";
 
 const secondOrder = (wn: number, zeta: number) =>
   createStateSpace({ A: [[0, 1], [-wn * wn, -2 * zeta * wn]], B: [[0], [wn * wn]], C: [[1, 0]] });

@@ -4,19 +4,7 @@ import { createStateSpace, type StateSpace } from "../../../shared-engine/model"
 import { eigenvalues } from "../../../shared-engine/linalg";
 import { EngineError } from "../../../shared-engine/errors";
 import { gainAtPoint, rootLocus, type RootLocus } from "../../../shared-engine/analysis/rootLocus";
-import { expectAtMost, expectComplexSetsClose, expectRelativeClose } from "../../helpers/assertions";
-
-function expectKind(run: () => unknown, kind: string, messagePart?: RegExp): void {
-  try {
-    run();
-  } catch (error) {
-    expect(error).toBeInstanceOf(EngineError);
-    expect((error as EngineError).kind).toBe(kind);
-    if (messagePart) expect((error as EngineError).message).toMatch(messagePart);
-    return;
-  }
-  expect.fail(`expected an EngineError of kind ${kind}`);
-}
+import { expectAtMost, expectComplexSetsClose, expectRelativeClose, expectEngineError as expectKind } from "../../helpers/assertions";
 
 // k/(s(s+1)(s+2)) = k/(s³ + 3s² + 2s), controllable canonical form.
 const threePoles = createStateSpace({ A: [[0, 1, 0], [0, 0, 1], [0, -2, -3]], B: [[0], [0], [1]], C: [[1, 0, 0]] });

@@ -1,22 +1,9 @@
 import { describe, expect, it } from "vitest";
 import fc from "fast-check";
 import { createStateSpace, type StateSpaceSpec } from "../../../shared-engine/model";
-import { EngineError } from "../../../shared-engine/errors";
 import { defaultHorizon, impulseResponse, initialResponse, simulateLinear, stepResponse, type TimeResponse } from "../../../shared-engine/analysis/timeResponse";
-import { expectAtMost, expectRelativeClose } from "../../helpers/assertions";
+import { expectAtMost, expectRelativeClose, expectEngineError as expectKind } from "../../helpers/assertions";
 import fixtures from "../../fixtures/analysis/time.json";
-
-function expectKind(run: () => unknown, kind: string, messagePart?: RegExp): void {
-  try {
-    run();
-  } catch (error) {
-    expect(error).toBeInstanceOf(EngineError);
-    expect((error as EngineError).kind).toBe(kind);
-    if (messagePart) expect((error as EngineError).message).toMatch(messagePart);
-    return;
-  }
-  expect.fail(`expected an EngineError of kind ${kind}`);
-}
 
 /** max_k,i |actual − expected| / max|expected|, expected given as rows[k][i]. */
 function relativeSeriesError(actual: number[][], expected: number[][]): number {

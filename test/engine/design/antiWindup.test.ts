@@ -1,21 +1,8 @@
 import { describe, expect, it } from "vitest";
-import { EngineError } from "../../../shared-engine/errors";
 import { integratorUpdate, saturate, type AntiWindupController, type AntiWindupMethod } from "../../../shared-engine/design/antiWindup";
 import { designIntegralPoles } from "../../../shared-engine/design/integralAction";
 import { createStateSpace } from "../../../shared-engine/model";
-import { expectRelativeClose } from "../../helpers/assertions";
-
-function expectKind(fn: () => unknown, kind: string, messagePart?: RegExp): void {
-  try {
-    fn();
-  } catch (error) {
-    expect(error).toBeInstanceOf(EngineError);
-    expect((error as EngineError).kind, (error as Error).message).toBe(kind);
-    if (messagePart) expect((error as Error).message).toMatch(messagePart);
-    return;
-  }
-  expect.fail(`expected an EngineError of kind ${kind}`);
-}
+import { expectRelativeClose, expectEngineError as expectKind } from "../../helpers/assertions";
 
 const base = (method: AntiWindupMethod): AntiWindupController => ({
   Kx: [[1]], Ki: [[-2]], limits: [{ min: -1, max: 1 }], method, trackingGain: 4,

@@ -1,19 +1,6 @@
-import { describe, expect, it } from "vitest";
-import { EngineError } from "../../../shared-engine/errors";
+import { describe, it } from "vitest";
 import { brysonWeights } from "../../../shared-engine/design/bryson";
-import { expectMatrixClose } from "../../helpers/assertions";
-
-function expectKind(fn: () => unknown, kind: string, messagePart?: RegExp): void {
-  try {
-    fn();
-  } catch (error) {
-    expect(error).toBeInstanceOf(EngineError);
-    expect((error as EngineError).kind, (error as Error).message).toBe(kind);
-    if (messagePart) expect((error as Error).message).toMatch(messagePart);
-    return;
-  }
-  expect.fail(`expected an EngineError of kind ${kind}`);
-}
+import { expectMatrixClose, expectEngineError as expectKind } from "../../helpers/assertions";
 
 describe("brysonWeights", () => {
   it("sets each diagonal weight to one over the squared limit", () => {

@@ -9,20 +9,8 @@ import { kalmanContinuous, kalmanDiscrete } from "../../../shared-engine/design/
 import { lqr } from "../../../shared-engine/design/lqr";
 import { eigenvalues, type Complex } from "../../../shared-engine/linalg";
 import { createStateSpace, discretize, type StateSpace } from "../../../shared-engine/model";
-import { expectAtMost, expectComplexSetsClose, expectMatrixClose, expectRelativeClose } from "../../helpers/assertions";
+import { expectAtMost, expectComplexSetsClose, expectMatrixClose, expectRelativeClose, expectEngineError as expectKind } from "../../helpers/assertions";
 import { matrixOf } from "./riccatiTestSystems";
-
-function expectKind(fn: () => unknown, kind: string, messagePart?: RegExp): void {
-  try {
-    fn();
-  } catch (error) {
-    expect(error).toBeInstanceOf(EngineError);
-    expect((error as EngineError).kind, (error as Error).message).toBe(kind);
-    if (messagePart) expect((error as Error).message).toMatch(messagePart);
-    return;
-  }
-  expect.fail(`expected an EngineError of kind ${kind}`);
-}
 
 /** SISO D + C(sI − A)⁻¹B at s = jω (continuous) or z = e^{jωT}, via the real 2n×2n system. */
 function evaluateSiso(sys: StateSpace, s: Complex): Complex {

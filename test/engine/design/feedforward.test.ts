@@ -1,22 +1,9 @@
 import { Matrix, solve } from "ml-matrix";
 import { describe, expect, it } from "vitest";
-import { EngineError } from "../../../shared-engine/errors";
 import { blockMatrix, referenceFeedforward, steadyStateGain } from "../../../shared-engine/design/feedforward";
 import { placePoles } from "../../../shared-engine/design/placePoles";
 import { createStateSpace, discretize } from "../../../shared-engine/model";
-import { expectAtMost, expectMatrixClose, expectRelativeClose } from "../../helpers/assertions";
-
-function expectKind(fn: () => unknown, kind: string, messagePart?: RegExp): void {
-  try {
-    fn();
-  } catch (error) {
-    expect(error).toBeInstanceOf(EngineError);
-    expect((error as EngineError).kind, (error as Error).message).toBe(kind);
-    if (messagePart) expect((error as Error).message).toMatch(messagePart);
-    return;
-  }
-  expect.fail(`expected an EngineError of kind ${kind}`);
-}
+import { expectAtMost, expectMatrixClose, expectRelativeClose, expectEngineError as expectKind } from "../../helpers/assertions";
 
 describe("referenceFeedforward", () => {
   it("gives the hand-worked scalar gain N = 2 for ẋ = −x + u, y = 2x, K = 3", () => {

@@ -4,20 +4,8 @@ import { describe, expect, it } from "vitest";
 import { EngineError } from "../../../shared-engine/errors";
 import { augmentWithIntegrators, designIntegralLqr, designIntegralPoles } from "../../../shared-engine/design/integralAction";
 import { createStateSpace, discretize, type StateSpace } from "../../../shared-engine/model";
-import { expectAtMost, expectComplexSetsClose, expectMatrixClose, expectRelativeClose } from "../../helpers/assertions";
+import { expectAtMost, expectComplexSetsClose, expectMatrixClose, expectRelativeClose, expectEngineError as expectKind } from "../../helpers/assertions";
 import { matrixOf } from "./riccatiTestSystems";
-
-function expectKind(fn: () => unknown, kind: string, messagePart?: RegExp): void {
-  try {
-    fn();
-  } catch (error) {
-    expect(error).toBeInstanceOf(EngineError);
-    expect((error as EngineError).kind, (error as Error).message).toBe(kind);
-    if (messagePart) expect((error as Error).message).toMatch(messagePart);
-    return;
-  }
-  expect.fail(`expected an EngineError of kind ${kind}`);
-}
 
 /** DC gain of a loop computed here from its definition (0 = Ax + Bu continuous, x = Ax + Bu sampled). */
 function dcGain(sys: StateSpace, from: "input" | "disturbance"): Matrix {

@@ -4,21 +4,9 @@ import { describe, expect, it } from "vitest";
 import { EngineError } from "../../../shared-engine/errors";
 import { kalmanContinuous, kalmanDiscrete } from "../../../shared-engine/design/kalman";
 import { lqr } from "../../../shared-engine/design/lqr";
-import { expectAtMost, expectComplexSetsClose, expectMatrixClose, expectRelativeClose } from "../../helpers/assertions";
+import { expectAtMost, expectComplexSetsClose, expectMatrixClose, expectRelativeClose, expectEngineError as expectKind } from "../../helpers/assertions";
 import fixture from "../../fixtures/design/riccati.json";
 import { add, fro, invert, matrixOf, mul, scale, tr, type Rows } from "./riccatiTestSystems";
-
-function expectKind(fn: () => unknown, kind: string, messagePart?: RegExp): void {
-  try {
-    fn();
-  } catch (error) {
-    expect(error).toBeInstanceOf(EngineError);
-    expect((error as EngineError).kind, (error as Error).message).toBe(kind);
-    if (messagePart) expect((error as Error).message).toMatch(messagePart);
-    return;
-  }
-  expect.fail(`expected an EngineError of kind ${kind}`);
-}
 
 /** Relative residual of AP + PAᵀ − PCᵀV⁻¹CP + GWGᵀ = 0, in plain arrays. */
 function filterResidual(A: Rows, C: Rows, GWGt: Rows, V: Rows, P: Rows): number {

@@ -5,20 +5,8 @@ import { lqr, lqrWeightSweep } from "../../../shared-engine/design/lqr";
 import { loopMargins } from "../../../shared-engine/design/lqrMargins";
 import { Matrix } from "ml-matrix";
 import { solveDiscreteRiccati } from "../../../shared-engine/design/riccatiDiscrete";
-import { expectComplexSetsClose, expectMatrixClose, expectRelativeClose } from "../../helpers/assertions";
+import { expectComplexSetsClose, expectMatrixClose, expectRelativeClose, expectEngineError as expectKind } from "../../helpers/assertions";
 import { add, diag, matrixOf, mul, tr } from "./riccatiTestSystems";
-
-function expectKind(fn: () => unknown, kind: string, messagePart?: RegExp): void {
-  try {
-    fn();
-  } catch (error) {
-    expect(error).toBeInstanceOf(EngineError);
-    expect((error as EngineError).kind, (error as Error).message).toBe(kind);
-    if (messagePart) expect((error as Error).message).toMatch(messagePart);
-    return;
-  }
-  expect.fail(`expected an EngineError of kind ${kind}`);
-}
 
 const DEG = 180 / Math.PI;
 

@@ -3,7 +3,7 @@ import { Matrix, solve } from "ml-matrix";
 import { describe, expect, it } from "vitest";
 import { EngineError } from "../../../shared-engine/errors";
 import { solveContinuousRiccati } from "../../../shared-engine/design/riccatiContinuous";
-import { expectAtMost, expectComplexSetsClose, expectMatrixClose, frobeniusDifference, frobenius } from "../../helpers/assertions";
+import { expectAtMost, expectComplexSetsClose, expectMatrixClose, frobeniusDifference, frobenius, expectEngineError } from "../../helpers/assertions";
 import fixture from "../../fixtures/design/riccati.json";
 import { continuousResidual, riccatiProblem, scale } from "./riccatiTestSystems";
 
@@ -17,20 +17,6 @@ const continuousCases = fixture.cases.filter((c) => c.kind === "continuous") as 
 const KNOWN_FAILURES: Record<string, string> = {
   "continuous n=2 m=1 badly scaled (eigenvalues 1e8 and 1e-4)": "Hamiltonian eigenvalue 1e-12·‖H‖ from the axis is rejected as on-axis",
 };
-
-function expectEngineError(fn: () => unknown, kind: string, messagePart?: RegExp, reason?: string): EngineError {
-  try {
-    fn();
-  } catch (error) {
-    expect(error).toBeInstanceOf(EngineError);
-    const e = error as EngineError;
-    expect(e.kind, e.message).toBe(kind);
-    if (messagePart) expect(e.message).toMatch(messagePart);
-    if (reason) expect(e.details.reason).toBe(reason);
-    return e;
-  }
-  return expect.fail(`expected an EngineError of kind ${kind}`);
-}
 
 describe("solveContinuousRiccati on benchmark examples", () => {
   it("solves Benner–Laub–Mehrmann continuous example 1 (double integrator) exactly", () => {

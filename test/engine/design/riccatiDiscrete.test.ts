@@ -3,25 +3,12 @@ import { Matrix } from "ml-matrix";
 import { describe, expect, it } from "vitest";
 import { EngineError } from "../../../shared-engine/errors";
 import { solveDiscreteRiccati } from "../../../shared-engine/design/riccatiDiscrete";
-import { expectAtMost, expectComplexSetsClose, expectMatrixClose, frobenius, frobeniusDifference } from "../../helpers/assertions";
+import { expectAtMost, expectComplexSetsClose, expectMatrixClose, frobenius, frobeniusDifference, expectEngineError } from "../../helpers/assertions";
 import fixture from "../../fixtures/design/riccati.json";
 import { diag, discreteResidual, eye, riccatiProblem, scale } from "./riccatiTestSystems";
 
 type Case = (typeof fixture.cases)[number];
 const discreteCases = fixture.cases.filter((c) => c.kind === "discrete") as Case[];
-
-function expectEngineError(fn: () => unknown, kind: string, messagePart?: RegExp): EngineError {
-  try {
-    fn();
-  } catch (error) {
-    expect(error).toBeInstanceOf(EngineError);
-    const e = error as EngineError;
-    expect(e.kind, e.message).toBe(kind);
-    if (messagePart) expect(e.message).toMatch(messagePart);
-    return e;
-  }
-  return expect.fail(`expected an EngineError of kind ${kind}`);
-}
 
 const shift = (n: number): number[][] => Array.from({ length: n }, (_, i) => Array.from({ length: n }, (_, j) => (j === i + 1 ? 1 : 0)));
 const lastUnit = (n: number): number[][] => Array.from({ length: n }, (_, i) => [i === n - 1 ? 1 : 0]);

@@ -3,19 +3,7 @@ import fc from "fast-check";
 import { Matrix } from "ml-matrix";
 import { balance, type Balanced } from "../../../shared-engine/linalg/balance";
 import { eigenvalues } from "../../../shared-engine/linalg/eigen";
-import { EngineError } from "../../../shared-engine/errors";
-import { expectComplexSetsClose, seededMatrix } from "../../helpers/assertions";
-
-function expectKind(fn: () => unknown, kind: string): void {
-  try {
-    fn();
-  } catch (e) {
-    expect(e).toBeInstanceOf(EngineError);
-    expect((e as EngineError).kind).toBe(kind);
-    return;
-  }
-  expect.fail(`expected an EngineError of kind ${kind}`);
-}
+import { expectComplexSetsClose, seededMatrix, expectEngineError as expectKind } from "../../helpers/assertions";
 
 /** The documented identity B[i][j] = A[perm[i]][perm[j]]·scale[j]/scale[i], exactly (powers of two). */
 function expectBalancedIdentity(A: Matrix, r: Balanced): void {

@@ -3,20 +3,8 @@ import fc from "fast-check";
 import { Matrix } from "ml-matrix";
 import { eigenvalues, eigenvectors } from "../../../shared-engine/linalg/eigen";
 import type { Complex } from "../../../shared-engine/linalg/complex";
-import { EngineError } from "../../../shared-engine/errors";
-import { EPS, expectAtMost, expectComplexSetsClose, frobenius, seededMatrix } from "../../helpers/assertions";
+import { EPS, expectAtMost, expectComplexSetsClose, frobenius, seededMatrix, expectEngineError as expectKind } from "../../helpers/assertions";
 import fixtures from "../../fixtures/linalg/eigen.json";
-
-function expectKind(fn: () => unknown, kind: string): EngineError {
-  try {
-    fn();
-  } catch (e) {
-    expect(e).toBeInstanceOf(EngineError);
-    expect((e as EngineError).kind).toBe(kind);
-    return e as EngineError;
-  }
-  return expect.fail(`expected an EngineError of kind ${kind}`);
-}
 
 /** Tolerance per fixture case, relative to max(1, |λ|). */
 function fixtureTolerance(name: string): number {

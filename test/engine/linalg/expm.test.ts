@@ -3,20 +3,8 @@ import fc from "fast-check";
 import { Matrix } from "ml-matrix";
 import { expm } from "../../../shared-engine/linalg/expm";
 import { expmIntegral, discreteNoiseCovariance } from "../../../shared-engine/linalg/vanLoan";
-import { EngineError } from "../../../shared-engine/errors";
-import { expectMatrixClose, expectAtMost, frobeniusDifference, frobenius } from "../../helpers/assertions";
+import { expectMatrixClose, expectAtMost, frobeniusDifference, frobenius, expectEngineError as expectKind } from "../../helpers/assertions";
 import fixtures from "../../fixtures/linalg/expm_lyap.json";
-
-function expectKind(fn: () => unknown, kind: string): void {
-  try {
-    fn();
-  } catch (e) {
-    expect(e).toBeInstanceOf(EngineError);
-    expect((e as EngineError).kind).toBe(kind);
-    return;
-  }
-  expect.fail(`expected an EngineError of kind ${kind}`);
-}
 
 describe("expm against scipy.linalg.expm fixtures", () => {
   // Source: test/fixtures/linalg/generate_expm_lyap.py (scipy.linalg.expm, versions in the JSON).

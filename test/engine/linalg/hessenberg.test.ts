@@ -2,19 +2,7 @@ import { describe, it, expect } from "vitest";
 import fc from "fast-check";
 import { Matrix } from "ml-matrix";
 import { hessenberg } from "../../../shared-engine/linalg/hessenberg";
-import { EngineError } from "../../../shared-engine/errors";
-import { EPS, expectAtMost, orthogonalSimilarityErrors, seededMatrix } from "../../helpers/assertions";
-
-function expectKind(fn: () => unknown, kind: string): void {
-  try {
-    fn();
-  } catch (e) {
-    expect(e).toBeInstanceOf(EngineError);
-    expect((e as EngineError).kind).toBe(kind);
-    return;
-  }
-  expect.fail(`expected an EngineError of kind ${kind}`);
-}
+import { EPS, expectAtMost, orthogonalSimilarityErrors, seededMatrix, expectEngineError as expectKind } from "../../helpers/assertions";
 
 function expectValidHessenberg(A: Matrix, what: string): { H: Matrix; Q: Matrix } {
   const n = A.rows;

@@ -4,20 +4,8 @@ import { Matrix } from "ml-matrix";
 import { solveContinuousLyapunov, solveDiscreteLyapunov } from "../../../shared-engine/linalg/lyapunov";
 import { expm } from "../../../shared-engine/linalg/expm";
 import { discreteNoiseCovariance } from "../../../shared-engine/linalg/vanLoan";
-import { EngineError } from "../../../shared-engine/errors";
-import { expectMatrixClose, expectAtMost, frobenius } from "../../helpers/assertions";
+import { expectMatrixClose, expectAtMost, frobenius, expectEngineError as expectKind } from "../../helpers/assertions";
 import fixtures from "../../fixtures/linalg/expm_lyap.json";
-
-function expectKind(fn: () => unknown, kind: string): EngineError {
-  try {
-    fn();
-  } catch (e) {
-    expect(e).toBeInstanceOf(EngineError);
-    expect((e as EngineError).kind).toBe(kind);
-    return e as EngineError;
-  }
-  return expect.fail(`expected an EngineError of kind ${kind}`);
-}
 
 /** ‖AX + XAᵀ + Q‖_F / (2‖A‖_F‖X‖_F + ‖Q‖_F) */
 function continuousResidual(A: Matrix, Q: Matrix, X: Matrix): number {

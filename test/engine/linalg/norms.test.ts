@@ -2,19 +2,7 @@ import { describe, it, expect } from "vitest";
 import fc from "fast-check";
 import { Matrix } from "ml-matrix";
 import { norm1, normInf, normFrobenius } from "../../../shared-engine/linalg/norms";
-import { EngineError } from "../../../shared-engine/errors";
-import { expectRelativeClose } from "../../helpers/assertions";
-
-function expectKind(fn: () => unknown, kind: string): void {
-  try {
-    fn();
-  } catch (e) {
-    expect(e).toBeInstanceOf(EngineError);
-    expect((e as EngineError).kind).toBe(kind);
-    return;
-  }
-  expect.fail(`expected an EngineError of kind ${kind}`);
-}
+import { expectRelativeClose, expectEngineError as expectKind } from "../../helpers/assertions";
 
 describe("matrix norms", () => {
   it("give the documented values for a small example", () => {

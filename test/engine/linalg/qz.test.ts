@@ -5,7 +5,7 @@ import { EngineError } from "../../../shared-engine/errors";
 import {
   generalizedEigenvalues, qz, reorderQz, type GeneralizedEigenvalue, type GeneralizedSchurForm,
 } from "../../../shared-engine/linalg/qz";
-import { EPS, expectAtMost, expectComplexSetsClose } from "../../helpers/assertions";
+import { EPS, expectAtMost, expectComplexSetsClose, expectEngineError } from "../../helpers/assertions";
 import fixtures from "../../fixtures/linalg/qz.json";
 
 interface QzCase {
@@ -58,18 +58,6 @@ function smallestSingularValueAt(A: Matrix, E: Matrix, lambda: { re: number; im:
   const M = new Matrix(2 * n, 2 * n);
   M.setSubMatrix(Ar, 0, 0).setSubMatrix(Ai.clone().neg(), 0, n).setSubMatrix(Ai, n, 0).setSubMatrix(Ar, n, n);
   return Math.min(...new SingularValueDecomposition(M).diagonal);
-}
-
-function expectEngineError(f: () => unknown, kind: string, messagePart?: RegExp): EngineError {
-  try {
-    f();
-  } catch (error) {
-    expect(error).toBeInstanceOf(EngineError);
-    expect((error as EngineError).kind).toBe(kind);
-    if (messagePart) expect((error as EngineError).message).toMatch(messagePart);
-    return error as EngineError;
-  }
-  return expect.fail(`expected an EngineError of kind ${kind}`);
 }
 
 function seededMatrix(n: number, seed: number): Matrix {

@@ -2,19 +2,7 @@ import { describe, it, expect } from "vitest";
 import fc from "fast-check";
 import { Matrix } from "ml-matrix";
 import { numericalRank, nullSpace, rangeSpace, reciprocalCondition, rankDecomposition } from "../../../shared-engine/linalg/rank";
-import { EngineError } from "../../../shared-engine/errors";
-import { expectAtMost, expectMatrixClose, frobenius, EPS } from "../../helpers/assertions";
-
-function expectKind(fn: () => unknown, kind: string): void {
-  try {
-    fn();
-  } catch (e) {
-    expect(e).toBeInstanceOf(EngineError);
-    expect((e as EngineError).kind).toBe(kind);
-    return;
-  }
-  expect.fail(`expected an EngineError of kind ${kind}`);
-}
+import { expectAtMost, expectMatrixClose, frobenius, EPS, expectEngineError as expectKind } from "../../helpers/assertions";
 
 const bounded = (rows: number, cols: number) =>
   fc.array(fc.integer({ min: -1000, max: 1000 }), { minLength: rows * cols, maxLength: rows * cols }).map((v) => {

@@ -4,26 +4,7 @@ import { Matrix } from "ml-matrix";
 import { realSchur, type RealSchurForm } from "../../../shared-engine/linalg/schur";
 import { reorderSchur, selectInsideUnitCircle, selectLeftHalfPlane } from "../../../shared-engine/linalg/reorderSchur";
 import type { Complex } from "../../../shared-engine/linalg/complex";
-import { EngineError } from "../../../shared-engine/errors";
-import {
-  EPS,
-  expectAtMost,
-  expectComplexSetsClose,
-  expectStandardQuasiTriangular,
-  orthogonalSimilarityErrors,
-  seededMatrix,
-} from "../../helpers/assertions";
-
-function expectKind(fn: () => unknown, kind: string): EngineError {
-  try {
-    fn();
-  } catch (e) {
-    expect(e).toBeInstanceOf(EngineError);
-    expect((e as EngineError).kind).toBe(kind);
-    return e as EngineError;
-  }
-  return expect.fail(`expected an EngineError of kind ${kind}`);
-}
+import { EPS, expectAtMost, expectComplexSetsClose, expectStandardQuasiTriangular, orthogonalSimilarityErrors, seededMatrix, expectEngineError as expectKind } from "../../helpers/assertions";
 
 /** Reorders the Schur form of A and checks every documented property; returns the result. */
 function expectValidReorder(A: Matrix, select: (l: Complex) => boolean, what: string) {

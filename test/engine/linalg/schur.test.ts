@@ -2,27 +2,8 @@ import { describe, it, expect } from "vitest";
 import fc from "fast-check";
 import { Matrix, QrDecomposition } from "ml-matrix";
 import { realSchur } from "../../../shared-engine/linalg/schur";
-import { EngineError } from "../../../shared-engine/errors";
-import {
-  EPS,
-  expectAtMost,
-  expectComplexSetsClose,
-  expectStandardQuasiTriangular,
-  orthogonalSimilarityErrors,
-  seededMatrix,
-} from "../../helpers/assertions";
+import { EPS, expectAtMost, expectComplexSetsClose, expectStandardQuasiTriangular, orthogonalSimilarityErrors, seededMatrix, expectEngineError as expectKind } from "../../helpers/assertions";
 import fixtures from "../../fixtures/linalg/eigen.json";
-
-function expectKind(fn: () => unknown, kind: string): EngineError {
-  try {
-    fn();
-  } catch (e) {
-    expect(e).toBeInstanceOf(EngineError);
-    expect((e as EngineError).kind).toBe(kind);
-    return e as EngineError;
-  }
-  return expect.fail(`expected an EngineError of kind ${kind}`);
-}
 
 /** Required bound of the issue: 100·n·ε for both the residual and the orthogonality. */
 function expectValidSchur(A: Matrix, what: string): ReturnType<typeof realSchur> {

@@ -2,20 +2,8 @@ import { describe, it, expect } from "vitest";
 import fc from "fast-check";
 import { Matrix } from "ml-matrix";
 import { solveSylvester } from "../../../shared-engine/linalg/sylvester";
-import { EngineError } from "../../../shared-engine/errors";
-import { expectMatrixClose, expectAtMost, frobenius } from "../../helpers/assertions";
+import { expectMatrixClose, expectAtMost, frobenius, expectEngineError as expectKind } from "../../helpers/assertions";
 import fixtures from "../../fixtures/linalg/expm_lyap.json";
-
-function expectKind(fn: () => unknown, kind: string): EngineError {
-  try {
-    fn();
-  } catch (e) {
-    expect(e).toBeInstanceOf(EngineError);
-    expect((e as EngineError).kind).toBe(kind);
-    return e as EngineError;
-  }
-  return expect.fail(`expected an EngineError of kind ${kind}`);
-}
 
 /** ‖AX + XB − C‖_F / ((‖A‖_F + ‖B‖_F)‖X‖_F + ‖C‖_F) */
 function relativeResidual(A: Matrix, B: Matrix, C: Matrix, X: Matrix): number {
