@@ -7,6 +7,7 @@ import { tmpdir } from "node:os";
 import path from "node:path";
 import { fileURLToPath } from "node:url";
 import { chromium, type BrowserContext, type Page } from "playwright-core";
+import { afterAll, beforeAll } from "vitest";
 import { startStaticServer, type StaticServer } from "../../scripts/static-server.mjs";
 
 export const REPO_ROOT = fileURLToPath(new URL("../..", import.meta.url));
@@ -78,4 +79,29 @@ export function watchPageProblems(page: Page, allowedOrigin: string): string[] {
 export function screenshotPath(name: string): string {
   mkdirSync(SCREENSHOT_DIR, { recursive: true });
   return path.join(SCREENSHOT_DIR, name);
+}
+
+/**
+ * For a test file: serves the renderer build and makes a fresh browser profile folder before
+ * its tests (beforeAll), and closes and removes both after them (afterAll).
+ */
+export function useServedRenderer(): { readonly server: StaticServer; readonly profileDir: string } {
+  let server: StaticServer | undefined;
+  let profileDir: string | undefined;
+  beforeAll(async () => {
+    server = await serveRendererBuild();
+    profileDir = freshProfileDir();
+  });
+  afterAll(async () => {
+    await server?.close();
+    if (profileDir) removeProfileDir(profileDir);
+  });
+  return {
+    get server() {
+      return server!;
+    },
+    get profileDir() {
+      return profileDir!;
+    },
+  };
 }

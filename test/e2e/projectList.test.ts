@@ -1,29 +1,17 @@
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { describe, expect, it } from "vitest";
 import type { BrowserContext, Page } from "playwright-core";
 import { DEMO_PROJECT_NAME } from "../../renderer/db/demoProject";
 import { ENGINE_VERSION } from "../../shared-engine/version";
-import type { StaticServer } from "../../scripts/static-server.mjs";
-import { freshProfileDir, launchBrowser, removeProfileDir, screenshotPath, serveRendererBuild, watchPageProblems } from "./helpers";
+import { launchBrowser, screenshotPath, watchPageProblems, useServedRenderer } from "./helpers";
 
 const PROJECT = "Pump station level loop";
 
-let server: StaticServer;
-let profileDir: string;
-
-beforeAll(async () => {
-  server = await serveRendererBuild();
-  profileDir = freshProfileDir();
-});
-
-afterAll(async () => {
-  await server?.close();
-  if (profileDir) removeProfileDir(profileDir);
-});
+const env = useServedRenderer();
 
 async function openApp(context: BrowserContext): Promise<{ page: Page; problems: string[] }> {
   const page = context.pages()[0] ?? (await context.newPage());
-  const problems = watchPageProblems(page, server.url.replace(/\/$/, ""));
-  await page.goto(server.url);
+  const problems = watchPageProblems(page, env.server.url.replace(/\/$/, ""));
+  await page.goto(env.server.url);
   await page.getByRole("heading", { name: "Projects" }).waitFor();
   await page.getByTestId("project-count").filter({ hasText: /project/ }).waitFor();
   return { page, problems };
@@ -33,7 +21,7 @@ const rowNames = (page: Page) => page.locator(".project-table .project-name").al
 
 describe("project list in browser mode", () => {
   it("creates a project that survives a reload and a browser restart, with the demo project created once", async () => {
-    let context = await launchBrowser(profileDir);
+    let context = await launchBrowser(env.profileDir);
     try {
       const { page, problems } = await openApp(context);
       expect(await rowNames(page)).toEqual([DEMO_PROJECT_NAME]);
@@ -52,7 +40,7 @@ describe("project list in browser mode", () => {
       await context.close();
     }
 
-    context = await launchBrowser(profileDir);
+    context = await launchBrowser(env.profileDir);
     try {
       const { page, problems } = await openApp(context);
       await page.locator(".project-name", { hasText: PROJECT }).waitFor();
@@ -64,7 +52,7 @@ describe("project list in browser mode", () => {
   });
 
   it("renames with the keyboard, deletes only after the in-page confirmation, and undoes the delete", async () => {
-    const context = await launchBrowser(profileDir);
+    const context = await launchBrowser(env.profileDir);
     try {
       const { page, problems } = await openApp(context);
       await page.getByRole("button", { name: `Rename ${PROJECT}` }).focus();
@@ -98,7 +86,7 @@ describe("project list in browser mode", () => {
   });
 
   it("checks the engine from the page and saves light and dark screenshots at 1366×768", async () => {
-    const context = await launchBrowser(profileDir);
+    const context = await launchBrowser(env.profileDir);
     try {
       const { page, problems } = await openApp(context);
       await page.getByRole("button", { name: "Check the engine" }).click();
@@ -119,7 +107,7 @@ describe("project list in browser mode", () => {
   });
 
   it("shows the empty state when every project is deleted", async () => {
-    const context = await launchBrowser(profileDir);
+    const context = await launchBrowser(env.profileDir);
     try {
       const { page } = await openApp(context);
       for (const name of await rowNames(page)) {

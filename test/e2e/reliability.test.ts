@@ -1,22 +1,10 @@
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { describe, expect, it } from "vitest";
 import type { BrowserContext, Page } from "playwright-core";
-import type { StaticServer } from "../../scripts/static-server.mjs";
 import type { ProjectFile } from "../../shared-engine/api/contract";
 import { sampleProject } from "../app/db/sampleProject";
-import { freshProfileDir, launchBrowser, removeProfileDir, serveRendererBuild } from "./helpers";
+import { launchBrowser, useServedRenderer } from "./helpers";
 
-let server: StaticServer;
-let profileDir: string;
-
-beforeAll(async () => {
-  server = await serveRendererBuild();
-  profileDir = freshProfileDir();
-});
-
-afterAll(async () => {
-  await server?.close();
-  if (profileDir) removeProfileDir(profileDir);
-});
+const env = useServedRenderer();
 
 interface StoredState {
   latest: { revision: number; document: ProjectFile } | null;
@@ -67,7 +55,7 @@ function expectConsistent(state: StoredState): void {
 
 async function openApp(context: BrowserContext): Promise<Page> {
   const page = context.pages()[0] ?? (await context.newPage());
-  await page.goto(`${server.url}?e2e=1`);
+  await page.goto(`${env.server.url}?e2e=1`);
   await page.getByTestId("project-count").filter({ hasText: /project/ }).waitFor();
   return page;
 }
@@ -80,13 +68,13 @@ async function importSample(page: Page, name: string): Promise<string> {
 }
 
 async function openTools(page: Page, projectId: string, tab: "compare" | "variants" | "history"): Promise<void> {
-  await page.goto(`${server.url}?e2e=1#/project/${encodeURIComponent(projectId)}/${tab}`);
+  await page.goto(`${env.server.url}?e2e=1#/project/${encodeURIComponent(projectId)}/${tab}`);
   await page.getByTestId("revision-label").filter({ hasText: /revision/ }).waitFor();
 }
 
 describe("reliability of saved projects in browser mode", () => {
   it("reopens at the last committed, valid revision after the browser is closed in the middle of a save", async () => {
-    let context = await launchBrowser(profileDir);
+    let context = await launchBrowser(env.profileDir);
     let page = await openApp(context);
     const projectId = await importSample(page, "Closed while saving");
     let committed = 1;
@@ -97,7 +85,7 @@ describe("reliability of saved projects in browser mode", () => {
       await new Promise((resolve) => setTimeout(resolve, round * 15));
       await context.close();
 
-      context = await launchBrowser(profileDir);
+      context = await launchBrowser(env.profileDir);
       page = await openApp(context);
       const stored = await readStored(page, projectId);
       expectConsistent(stored);
@@ -111,7 +99,7 @@ describe("reliability of saved projects in browser mode", () => {
   });
 
   it("two tabs saving the same project at once: one wins and the other shows a conflict, or the second builds on the first; never mixed", async () => {
-    const context = await launchBrowser(profileDir);
+    const context = await launchBrowser(env.profileDir);
     const first = await openApp(context);
     const projectId = await importSample(first, "Two tabs");
     const second = await context.newPage();

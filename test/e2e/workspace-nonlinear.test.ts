@@ -5,31 +5,19 @@
  * and run the nonlinear check with its progress bar and the dashed linear overlay.
  * Screenshots go to test-output/e2e/workspace-nl-*.png.
  */
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { describe, expect, it } from "vitest";
 import { DEMO_PROJECT_NAME } from "../../renderer/db/demoProject";
-import type { StaticServer } from "../../scripts/static-server.mjs";
-import { freshProfileDir, launchBrowser, removeProfileDir, screenshotPath, serveRendererBuild, watchPageProblems } from "./helpers";
+import { launchBrowser, screenshotPath, watchPageProblems, useServedRenderer } from "./helpers";
 
-let server: StaticServer;
-let profileDir: string;
-
-beforeAll(async () => {
-  server = await serveRendererBuild();
-  profileDir = freshProfileDir();
-});
-
-afterAll(async () => {
-  await server?.close();
-  if (profileDir) removeProfileDir(profileDir);
-});
+const env = useServedRenderer();
 
 describe("nonlinear plant in the workspace", () => {
   it("checks typed equations with a caret, solves the operating point, linearizes, and runs the nonlinear check with progress", async () => {
-    const context = await launchBrowser(profileDir);
+    const context = await launchBrowser(env.profileDir);
     try {
       const page = context.pages()[0] ?? (await context.newPage());
-      const problems = watchPageProblems(page, server.url.replace(/\/$/, ""));
-      await page.goto(server.url);
+      const problems = watchPageProblems(page, env.server.url.replace(/\/$/, ""));
+      await page.goto(env.server.url);
       await page.getByRole("button", { name: `Open ${DEMO_PROJECT_NAME}` }).click();
       await page.getByTestId("workspace").waitFor();
 

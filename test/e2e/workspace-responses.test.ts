@@ -4,31 +4,19 @@
  * Responses tab and see the simulated response, release the loop from typed state offsets.
  * Screenshots: test-output/e2e/workspace-responses-*.png.
  */
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { describe, expect, it } from "vitest";
 import { DEMO_PROJECT_NAME } from "../../renderer/db/demoProject";
-import type { StaticServer } from "../../scripts/static-server.mjs";
-import { freshProfileDir, launchBrowser, removeProfileDir, screenshotPath, serveRendererBuild, watchPageProblems } from "./helpers";
+import { launchBrowser, screenshotPath, watchPageProblems, useServedRenderer } from "./helpers";
 
-let server: StaticServer;
-let profileDir: string;
-
-beforeAll(async () => {
-  server = await serveRendererBuild();
-  profileDir = freshProfileDir();
-});
-
-afterAll(async () => {
-  await server?.close();
-  if (profileDir) removeProfileDir(profileDir);
-});
+const env = useServedRenderer();
 
 describe("structure and responses in browser mode", () => {
   it("shows the modes and coupling table, then simulates a pasted CSV sequence and an initial offset", async () => {
-    const context = await launchBrowser(profileDir);
+    const context = await launchBrowser(env.profileDir);
     try {
       const page = context.pages()[0] ?? (await context.newPage());
-      const problems = watchPageProblems(page, server.url.replace(/\/$/, ""));
-      await page.goto(server.url);
+      const problems = watchPageProblems(page, env.server.url.replace(/\/$/, ""));
+      await page.goto(env.server.url);
       await page.getByRole("button", { name: `Open ${DEMO_PROJECT_NAME}` }).click();
       await page.getByTestId("workspace").waitFor();
       await expect.poll(() => page.getByTestId("evaluation-status").textContent(), { timeout: 30_000 }).toMatch(/^Up to date/);

@@ -4,24 +4,12 @@
  * and raise a weight and watch the step response settle faster. Screenshots go to
  * test-output/e2e/workspace-*.png.
  */
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { describe, expect, it } from "vitest";
 import type { Page } from "playwright-core";
 import { DEMO_PROJECT_NAME } from "../../renderer/db/demoProject";
-import type { StaticServer } from "../../scripts/static-server.mjs";
-import { freshProfileDir, launchBrowser, removeProfileDir, screenshotPath, serveRendererBuild, watchPageProblems } from "./helpers";
+import { launchBrowser, screenshotPath, watchPageProblems, useServedRenderer } from "./helpers";
 
-let server: StaticServer;
-let profileDir: string;
-
-beforeAll(async () => {
-  server = await serveRendererBuild();
-  profileDir = freshProfileDir();
-});
-
-afterAll(async () => {
-  await server?.close();
-  if (profileDir) removeProfileDir(profileDir);
-});
+const env = useServedRenderer();
 
 /** Settling time shown in the summary, in seconds (NaN when absent). */
 async function settlingSeconds(page: Page): Promise<number> {
@@ -34,17 +22,17 @@ async function upToDate(page: Page): Promise<void> {
 }
 
 async function openDemo(page: Page): Promise<void> {
-  await page.goto(server.url);
+  await page.goto(env.server.url);
   await page.getByRole("button", { name: `Open ${DEMO_PROJECT_NAME}` }).click();
   await page.getByTestId("workspace").waitFor();
 }
 
 describe("design workspace in browser mode", () => {
   it("opens the demo with its design, takes a pasted matrix, moves a dragged pole's gain, and speeds up an LQR design", async () => {
-    const context = await launchBrowser(profileDir);
+    const context = await launchBrowser(env.profileDir);
     try {
       const page = context.pages()[0] ?? (await context.newPage());
-      const problems = watchPageProblems(page, server.url.replace(/\/$/, ""));
+      const problems = watchPageProblems(page, env.server.url.replace(/\/$/, ""));
       await openDemo(page);
       // The demo document is the shipped example: its pole-placement variant is a real design.
       await page.getByLabel("Variant", { exact: true }).selectOption("poles-continuous");
@@ -112,7 +100,7 @@ describe("design workspace in browser mode", () => {
   });
 
   it("reads well in the dark theme", async () => {
-    const context = await launchBrowser(profileDir, { colorScheme: "dark" });
+    const context = await launchBrowser(env.profileDir, { colorScheme: "dark" });
     try {
       const page = context.pages()[0] ?? (await context.newPage());
       await openDemo(page);
