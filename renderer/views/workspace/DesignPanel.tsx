@@ -25,6 +25,7 @@ import {
   type WorkspaceStore,
 } from "../../state/workspace";
 import { NumberField } from "./NumberField";
+import { RadioChoices } from "./RadioChoices";
 
 interface Props {
   store: WorkspaceStore;
@@ -42,17 +43,12 @@ export function DesignPanel(props: Props) {
     <div className="design-panel">
       <fieldset className="form-row">
         <legend>State feedback</legend>
-        {(
-          [
-            ["poles", "Place poles"],
-            ["lqr", "LQR weights"],
-          ] as const
-        ).map(([m, text]) => (
-          <label key={m} className="choice">
-            <input type="radio" name={`method-${variant.id}`} checked={method === m} onChange={() => setFeedbackMethod(store, variant.id, m, dims)} />
-            {text}
-          </label>
-        ))}
+        <RadioChoices
+          name={`method-${variant.id}`}
+          options={[["poles", "Place poles"], ["lqr", "LQR weights"]] as const}
+          value={method}
+          onChoose={(m) => setFeedbackMethod(store, variant.id, m, dims)}
+        />
       </fieldset>
       {method === "poles" && <PoleEditor {...props} />}
       {method === "lqr" && <LqrEditor {...props} />}
@@ -267,27 +263,16 @@ function ObserverEditor({ store, state, variant, dims }: Props) {
   return (
     <fieldset className="form-row observer">
       <legend>Observer (estimate the states from the outputs)</legend>
-      {(
-        [
-          ["none", "None (all states measured)"],
-          ["poles", "By poles"],
-          ["kalman", "By noise covariances (Kalman)"],
-        ] as const
-      ).map(([m, t]) => (
-        <label key={m} className="choice">
-          <input
-            type="radio"
-            name={`observer-${variant.id}`}
-            checked={(obs?.method ?? "none") === m}
-            onChange={() => {
-              const next = m === "none" ? null : m === "poles" ? { method: "poles" as const, poles: Array.from({ length: dims.states }, (_, i) => ({ re: -2 * (i + 1), im: 0 })) } : { method: "kalman" as const, processNoise: eye(dims.disturbances || dims.inputs), measurementNoise: eye(dims.outputs) };
-              setObserver(store, variant.id, next);
-              setValue(next === null ? "" : next.method === "poles" ? next.poles.map((p) => p.re).join(", ") : `${JSON.stringify(next.processNoise)} | ${JSON.stringify(next.measurementNoise)}`);
-            }}
-          />
-          {t}
-        </label>
-      ))}
+      <RadioChoices
+        name={`observer-${variant.id}`}
+        options={[["none", "None (all states measured)"], ["poles", "By poles"], ["kalman", "By noise covariances (Kalman)"]] as const}
+        value={obs?.method ?? "none"}
+        onChoose={(m) => {
+          const next = m === "none" ? null : m === "poles" ? { method: "poles" as const, poles: Array.from({ length: dims.states }, (_, i) => ({ re: -2 * (i + 1), im: 0 })) } : { method: "kalman" as const, processNoise: eye(dims.disturbances || dims.inputs), measurementNoise: eye(dims.outputs) };
+          setObserver(store, variant.id, next);
+          setValue(next === null ? "" : next.method === "poles" ? next.poles.map((p) => p.re).join(", ") : `${JSON.stringify(next.processNoise)} | ${JSON.stringify(next.measurementNoise)}`);
+        }}
+      />
       {obs && (
         <div className="form-row">
           <label htmlFor={`obs-${variant.id}`}>{obs.method === "poles" ? "Observer poles" : "Process noise | measurement noise"}</label>

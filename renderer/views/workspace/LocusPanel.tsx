@@ -3,6 +3,7 @@ import type { ComplexValue, EngineBridge, ProjectFile, VariantResult, VariantSpe
 import { ParameterLocusPlot, RootLocusPlot } from "../../plots";
 import { createLocusController, lqrWeightLocusParams, observerSpeedLocusParams, plantOfVariant, rootLocusParams, type LocusPick } from "../../state/workspace";
 import { ProgressBar } from "./ProgressBar";
+import { RadioChoices } from "./RadioChoices";
 
 interface Props {
   bridge: EngineBridge;
@@ -54,12 +55,12 @@ export function LocusPanel({ bridge, document, variant, result, width }: Props) 
         <h2 id="root-locus-title" className="section-title">Root locus (one input, one output)</h2>
         <fieldset className="form-row">
           <legend className="visually-hidden">Loop</legend>
-          {(["designed", "plant"] as const).map((loop) => (
-            <label key={loop} className="choice">
-              <input type="radio" name="locus-loop" checked={ls.loop === loop} onChange={() => locus.setLoop(loop)} />
-              {loop === "designed" ? "Designed loop, broken at the plant input (k = 1 is the design)" : "Plant alone, u = −k·y"}
-            </label>
-          ))}
+          <RadioChoices
+            name="locus-loop"
+            options={[["designed", "Designed loop, broken at the plant input (k = 1 is the design)"], ["plant", "Plant alone, u = −k·y"]] as const}
+            value={ls.loop}
+            onChoose={(loop) => locus.setLoop(loop)}
+          />
         </fieldset>
         <div className="form-row">
           <button type="button" className="button-accent" onClick={() => attempt(() => void locus.rootLocus.run(rootLocusParams(ls.loop, plant, variant, result)))}>Compute root locus</button>

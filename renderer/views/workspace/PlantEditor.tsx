@@ -21,6 +21,7 @@ import {
   type WorkspaceStore,
 } from "../../state/workspace";
 import { MatrixGrid } from "./MatrixGrid";
+import { RadioChoices } from "./RadioChoices";
 
 interface Props {
   store: WorkspaceStore;
@@ -51,23 +52,12 @@ export function PlantEditor({ store, state, plant }: Props) {
     <div className="plant-editor">
       <fieldset className="form-row">
         <legend>Model form</legend>
-        {(
-          [
-            ["state-space", "State space (A, B, F; C, D, E)"],
-            ["transfer-function", "Transfer function"],
-            ["zero-pole-gain", "Zeros, poles and gain"],
-          ] as const
-        ).map(([type, text]) => (
-          <label key={type} className="choice">
-            <input
-              type="radio"
-              name={`form-${plant.id}`}
-              checked={model.type === type}
-              onChange={() => setModelCommand(store, plant.id, defaultModel(type, model.sampleTime), `started a new ${text.toLowerCase()} model`)}
-            />
-            {text}
-          </label>
-        ))}
+        <RadioChoices
+          name={`form-${plant.id}`}
+          options={[["state-space", "State space (A, B, F; C, D, E)"], ["transfer-function", "Transfer function"], ["zero-pole-gain", "Zeros, poles and gain"]] as const}
+          value={model.type}
+          onChoose={(type, text) => setModelCommand(store, plant.id, defaultModel(type, model.sampleTime), `started a new ${text.toLowerCase()} model`)}
+        />
         <p className="muted hint">Switching the form starts a new model; Undo (Ctrl+Z) brings the previous one back.</p>
       </fieldset>
       <PlantSampleTime store={store} state={state} plant={plant} />
