@@ -134,7 +134,9 @@ export const nonlinearHandlers = {
       { rename: NONLINEAR_FIELD_NAMES },
     );
     onProgress(1);
-    const { warnings, ...rest } = truncatedAtOverflow(sim);
+    // The engine ends the record at the last sample where every signal is finite (and says why
+    // in stoppedEarly); the dispatcher's finite-result check stays the last guard.
+    const { warnings, ...rest } = sim;
     const notes = rest.stoppedEarly ? [...warnings, `the simulation stopped early at t = ${rest.stoppedEarly.time}: ${rest.stoppedEarly.reason}`] : warnings;
     return { ...rest, diagnostics: diagnostics({ warnings: notes }) };
   }) as RequestHandler<NonlinearSimulateResult>,
@@ -179,50 +181,6 @@ export const nonlinearHandlers = {
     };
   }) as RequestHandler<NonlinearRobustnessResult>,
 };
-
-type Simulation = ReturnType<typeof simulateClosedLoop>;
-
-/**
- * The simulation cut before the first sample holding a non-finite value. The linear prediction
- * of an unstable loop grows like e^{λt} and overflows on a long horizon (then 0·∞ gives NaN);
- * JSON cannot carry those values, so the result ends at the last finite sample, says why in
- * `stoppedEarly`, and the largest divergence is taken over the samples kept.
- */
-function truncatedAtOverflow(sim: Simulation): Simulation {
-  const finiteRow = (row: number[]): boolean => row.every(Number.isFinite);
-  let keep = sim.time.length;
-  for (let k = 0; k < sim.time.length; k++) {
-    const rows = [sim.states[k]!, sim.outputs[k]!, sim.inputs[k]!, sim.linear.states[k]!, sim.linear.outputs[k]!, sim.linear.inputs[k]!];
-    if (!rows.every(finiteRow)) {
-      keep = k;
-      break;
-    }
-  }
-  if (keep === sim.time.length) return sim;
-  const cut = <T>(list: T[]): T[] => list.slice(0, keep);
-  let largestDivergence: Simulation["largestDivergence"] = null;
-  if (sim.names.outputs.length > 0 && keep > 0) {
-    largestDivergence = { time: sim.time[0]!, output: sim.names.outputs[0]!, size: 0 };
-    for (let k = 0; k < keep; k++) {
-      sim.outputs[k]!.forEach((v, j) => {
-        const d = Math.abs(v - sim.linear.outputs[k]![j]!);
-        if (d > largestDivergence!.size) largestDivergence = { time: sim.time[k]!, output: sim.names.outputs[j]!, size: d };
-      });
-    }
-  }
-  const time = sim.time[keep]!;
-  return {
-    ...sim,
-    time: cut(sim.time),
-    states: cut(sim.states),
-    outputs: cut(sim.outputs),
-    inputs: cut(sim.inputs),
-    linear: { states: cut(sim.linear.states), outputs: cut(sim.linear.outputs), inputs: cut(sim.linear.inputs) },
-    largestDivergence,
-    stoppedEarly: sim.stoppedEarly && sim.stoppedEarly.time <= time ? sim.stoppedEarly : { time, reason: "a signal (usually the linear prediction of an unstable loop) overflows double precision" },
-    warnings: [...sim.warnings, `results end before t = ${time}: a value there is not finite`],
-  };
-}
 
 function requireParameterSpread(value: unknown): { name: string; percent: number }[] {
   if (!Array.isArray(value)) throw new EngineError("invalid-argument", "parameters must be a list of {name, percent}", { field: "parameters" });

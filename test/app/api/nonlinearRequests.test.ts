@@ -144,8 +144,7 @@ describe("nonlinear.simulate", () => {
     const lambda = (-0.3 + Math.sqrt(0.09 + (4 * 9.81) / 0.5)) / 2;
     const k = r.time.length - 1;
     expectRelativeClose(r.linear.states[k]![0]! / r.linear.states[k - 1]![0]!, Math.exp(lambda), 1e-9, "growth per second");
-    // The engine itself ends the record there and says why (the bridge adds its own note only
-    // when a non-finite value still reaches it).
+    // The engine itself ends the record there and says why; the bridge passes it on.
     expect(`${r.stoppedEarly!.reason} ${r.diagnostics.warnings.join(" ")}`).toMatch(/floating-point range|not finite/);
   });
 
