@@ -12,6 +12,7 @@ import { poles } from "../analysis/poles";
 import { stepResponse } from "../analysis/timeResponse";
 import type { VariantSpec } from "./format";
 import type { VariantResult } from "./result";
+import { isStable } from "./resultJson";
 
 /** Half-width of the settling band, relative to the peak deviation (common practice: 2 %). */
 export const DISTURBANCE_SETTLING_BAND = 0.02;
@@ -35,8 +36,7 @@ export function disturbanceStep(
   const p = plant.C.rows;
   const m = plant.B.columns;
   const T = system.sampleTime;
-  const ps = poles(system);
-  const stable = T === null ? ps.every((s) => s.re < 0) : ps.every((s) => Math.hypot(s.re, s.im) < 1);
+  const stable = isStable(poles(system), T);
   const y = resp.outputs[0]!.map((v) => v * size);
   const dc = stable ? dcGain({ ...system, B: system.F, D: system.E }) : null;
   const finalValue = dc && dc.gain ? dc.gain[0]![index]! * size : null;
