@@ -6,7 +6,7 @@
 import { SingularValueDecomposition, Matrix } from "ml-matrix";
 import { EngineError } from "../errors";
 import type { Complex } from "../linalg/complex";
-import { solveInPlace, transpose } from "../linalg/denseKernels";
+import { solveInPlace, transpose } from "../linalg/kernels";
 
 /** Complex n×n (or n×k) matrix as two row-major arrays. */
 export interface ComplexArray { re: Float64Array; im: Float64Array }

@@ -8,8 +8,7 @@
 import { Matrix } from "ml-matrix";
 import { EngineError } from "../errors";
 import { asMatrix, requireFinite, requireNonEmpty, requireSquareFinite, shapeOf, type Complex, type MatrixInput } from "../linalg";
-import { balanceInPlace } from "../linalg/balance";
-import { rowMajorOf } from "../linalg/denseKernels";
+import { balanceInPlace, rowMajorOf } from "../linalg/kernels";
 import { cholesky, frobeniusOf, multiply, oneNormRowMajor, solveInPlace } from "./riccatiKernels";
 
 /** Result of a continuous or discrete algebraic Riccati solve. All matrices are fresh copies. */

@@ -4,8 +4,7 @@
  */
 import { EngineError } from "../errors";
 import { selectLeftHalfPlane, type MatrixInput } from "../linalg";
-import { reorderSchurInPlace } from "../linalg/reorderSchur";
-import { defaultSchurIterationLimit, eigenvaluesOfQuasiTriangular, realSchurRowMajor } from "../linalg/schur";
+import { defaultSchurIterationLimit, eigenvaluesOfQuasiTriangular, realSchurRowMajor, reorderSchurInPlace } from "../linalg/kernels";
 import {
   checkWeights, graphSolution, prepareRiccatiData, symplecticScaling, type RiccatiData, type RiccatiOptions, type RiccatiSolution,
 } from "./riccati";

@@ -4,10 +4,8 @@
  */
 import { EngineError } from "../errors";
 import { eigenvalues, fromFloat64, solveContinuousLyapunov, solveDiscreteLyapunov, toFloat64, type Complex } from "../linalg";
-import { balanceInPlace } from "../linalg/balance";
-import { matrixOfRowMajor } from "../linalg/denseKernels";
+import { balanceInPlace, defaultSchurIterationLimit, francisQRInPlace, matrixOfRowMajor } from "../linalg/kernels";
 import { reduceToHessenbergInPlace } from "../linalg/hessenberg";
-import { defaultSchurIterationLimit, francisQRInPlace } from "../linalg/schur";
 import type { RiccatiData, RiccatiOptions, RiccatiSolution } from "./riccati";
 import { asymmetryOf, cholesky, forwardSubstitute, frobeniusOf, multiply, solveInPlace, symmetrizeInPlace, transpose } from "./riccatiKernels";
 

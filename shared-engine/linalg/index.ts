@@ -1,6 +1,7 @@
 /**
- * Public surface of linalg/. Other folders import only from here. Kernels on row-major
- * Float64Arrays (…InPlace functions, denseKernels, qzKernels) stay internal to this folder.
+ * Public surface of linalg/. Other folders import from here, or — for the row-major
+ * Float64Array kernels that solvers in other layers build on — from kernels.ts. Everything
+ * else (qzKernels, the remaining …InPlace helpers) stays internal to this folder.
  */
 export * from "./complex";
 export * from "./validate";
