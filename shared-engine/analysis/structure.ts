@@ -6,6 +6,7 @@
 import { Matrix, SingularValueDecomposition } from "ml-matrix";
 import { EngineError } from "../errors";
 import { eigenvalues, type Complex } from "../linalg";
+import { matrixOfRowMajor, rowMajorOf } from "../linalg/kernels";
 import type { StateSpace } from "../model";
 import { boundaryDistance, stabilityTolerance } from "./stability";
 
@@ -92,13 +93,16 @@ export function staircaseTolerance(A: Matrix, B: Matrix): number {
  *   linear system theory", IEEE Trans. Automatic Control 26(1):111–129, 1981, and A. Varga,
  *   "Numerically stable algorithm for standard controllability form determination",
  *   Electronics Letters 17(2):74–75, 1981: step k compresses the rows of the current
- *   sub-diagonal block (B at step 1) with an SVD (`leftCompression`), applies the orthogonal
- *   factor as a similarity to the trailing states, and stops when the block has rank 0
+ *   sub-diagonal block (B at step 1): its rank and leading left singular vectors come from a
+ *   thin SVD, and the orthogonal factor is applied as a similarity to the trailing states as
+ *   the product of the rank-many Householder reflectors that triangularise those singular
+ *   vectors (their span is all that matters), and it stops when the block has rank 0
  *   (uncontrollable remainder) or all states are reached. Never forms [B AB A²B …] (C. C. Paige,
  *   "Properties of numerical algorithms related to computing controllability", IEEE TAC 26(1),
  *   1981: that matrix can be numerically rank deficient for a robustly controllable pair).
- * Cost: at most n steps; step k costs an SVD of an (n − n_k)×m_k block and O(n·(n − n_k)²) for
- *   the similarity, hence O(n⁴) in the single-input worst case, O(n³) typically. Memory O(n²).
+ * Cost: at most n steps; step k costs a thin SVD of an (n − n_k)×m_k block and 4·n·(n − n_k)
+ *   flops per reflector for the similarity, n reflectors in all: O(n³) (about 8n³/3 flops for
+ *   single input; the earlier full-factor form was O(n⁴)). Memory O(n²).
  * Accuracy: backward stable: the form is exact for (A + ΔA, B + ΔB) with ‖Δ‖ ≲ tol + O(nε‖A‖);
  *   entries discarded as zero are ≤ tol (default `staircaseTolerance`).
  * Errors: "invalid-argument" for a negative or non-finite tol; "non-finite" on overflow.
@@ -108,47 +112,121 @@ export function staircaseTolerance(A: Matrix, B: Matrix): number {
  */
 export function controllabilityStaircase(A: Matrix, B: Matrix, tol?: number): ControllabilityStaircase {
   const n = A.rows;
+  const m = B.columns;
   const tolerance = tol ?? staircaseTolerance(A, B);
   checkTolerance(tolerance, "tol");
-  const a = A.clone();
-  const b = B.clone();
-  const z = Matrix.eye(n);
+  const a = rowMajorOf(A);
+  const b = rowMajorOf(B);
+  const z = new Float64Array(n * n);
+  for (let i = 0; i < n; i++) z[i * n + i] = 1;
+  const v = new Float64Array(n);
   const blockSizes: number[] = [];
   let offset = 0;
   let prevStart = -1;
   let prevSize = 0;
   while (offset < n) {
-    // Step k: the block to compress sits in rows offset..n−1 of B (k = 1) or of A's previous block columns.
-    const G = prevStart < 0 ? subBlock(b, offset, n, 0, b.columns) : subBlock(a, offset, n, prevStart, prevStart + prevSize);
-    const { rank, U } = leftCompression(G, tolerance);
+    // Step k: the block to compress sits in rows offset..n−1 of B (k = 1) or of A's previous
+    // block columns prevStart..prevStart+prevSize−1.
+    const [src, width, c0, c1] = prevStart < 0 ? [b, m, 0, m] : [a, n, prevStart, prevStart + prevSize];
+    const r = n - offset;
+    const G = new Matrix(r, c1 - c0);
+    for (let i = 0; i < r; i++) for (let j = c0; j < c1; j++) G.set(i, j - c0, src[(offset + i) * width + j]!);
+    const { rank, basis } = leadingLeftSingularVectors(G, tolerance);
     if (rank === 0) break;
-    applySimilarity(a, b, z, U, offset);
+    // Orthogonal U = H₁⋯H_rank whose first `rank` columns span those of `basis` (Householder QR
+    // of the basis); applied reflector by reflector as a similarity on the trailing states.
+    for (let j = 0; j < rank; j++) {
+      const top = offset + j;
+      let norm = 0;
+      for (let i = j; i < r; i++) norm = Math.hypot(norm, basis[i * rank + j]!);
+      const alpha = basis[j * rank + j]!;
+      const beta = alpha >= 0 ? -norm : norm;
+      v.fill(0, 0, n);
+      v[top] = alpha - beta;
+      for (let i = j + 1; i < r; i++) v[offset + i] = basis[i * rank + j]!;
+      let vv = 0;
+      for (let i = top; i < n; i++) vv += v[i]! * v[i]!;
+      if (!(vv > 0)) continue; // the column is already ∓‖·‖e_top: H = I
+      const f = 2 / vv;
+      // the basis's remaining columns get the same reflector (rows j..r−1 of the basis = top..n−1)
+      for (let c = j + 1; c < rank; c++) {
+        let s = 0;
+        for (let i = j; i < r; i++) s += v[offset + i]! * basis[i * rank + c]!;
+        s *= f;
+        for (let i = j; i < r; i++) basis[i * rank + c] -= s * v[offset + i]!;
+      }
+      reflectRows(a, n, n, v, top, f);
+      reflectRows(b, n, m, v, top, f);
+      reflectColumns(a, n, v, top, f);
+      reflectColumns(z, n, v, top, f);
+    }
     // The compressed rows below the rank are rounding noise (≤ tol): make them exact zeros.
-    const [src, c0, c1] = prevStart < 0 ? [b, 0, b.columns] : [a, prevStart, prevStart + prevSize];
-    for (let i = offset + rank; i < n; i++) for (let j = c0; j < c1; j++) src.set(i, j, 0);
+    for (let i = offset + rank; i < n; i++) for (let j = c0; j < c1; j++) src[i * width + j] = 0;
     prevStart = offset;
     prevSize = rank;
     offset += rank;
     blockSizes.push(rank);
   }
   for (let i = offset; i < n; i++) {
-    for (let j = 0; j < b.columns; j++) b.set(i, j, 0);
-    for (let j = 0; j < offset; j++) a.set(i, j, 0);
+    for (let j = 0; j < m; j++) b[i * m + j] = 0;
+    for (let j = 0; j < offset; j++) a[i * n + j] = 0;
   }
-  return { controllableDimension: offset, blockSizes, A: a, B: b, Z: z, tolerance };
+  return {
+    controllableDimension: offset,
+    blockSizes,
+    A: matrixOfRowMajor(a, n, n),
+    B: matrixOfRowMajor(b, n, m),
+    Z: matrixOfRowMajor(z, n, n),
+    tolerance,
+  };
 }
 
-/** a ← Uᵀ a U, b ← Uᵀ b, z ← z U on the trailing index range offset..n−1. */
-function applySimilarity(a: Matrix, b: Matrix, z: Matrix, U: Matrix, offset: number): void {
-  const n = a.rows;
-  const k = n - offset;
-  const Ut = U.transpose();
-  const rowsA = Ut.mmul(subBlock(a, offset, n, 0, n));
-  a.setSubMatrix(rowsA, offset, 0);
-  if (b.columns > 0) b.setSubMatrix(Ut.mmul(subBlock(b, offset, n, 0, b.columns)), offset, 0);
-  a.setSubMatrix(subBlock(a, 0, n, offset, n).mmul(U), 0, offset);
-  z.setSubMatrix(subBlock(z, 0, n, offset, n).mmul(U), 0, offset);
-  if (k !== U.rows) throw new EngineError("internal", "staircase block size mismatch", { k, u: U.rows });
+/**
+ * The numerical rank ρ = #{σᵢ > tol} of G: r×c and its ρ leading left singular vectors as a
+ * row-major r×ρ array, from a thin SVD (Golub–Kahan–Reinsch, via ml-matrix): O(r·c·min(r, c)),
+ * unlike `leftCompression`, which needs the full r×r factor.
+ */
+function leadingLeftSingularVectors(G: Matrix, tol: number): { rank: number; basis: Float64Array } {
+  const r = G.rows;
+  const c = G.columns;
+  if (r === 0 || c === 0) return { rank: 0, basis: new Float64Array(0) };
+  const svd = new SingularValueDecomposition(G, { autoTranspose: true, computeRightSingularVectors: false });
+  const singularValues = svd.diagonal;
+  if (!singularValues.every(Number.isFinite)) {
+    throw new EngineError("non-finite", "a singular value decomposition overflowed (model entries too large)", {});
+  }
+  let rank = 0;
+  while (rank < Math.min(r, c) && singularValues[rank]! > tol) rank++;
+  const U = svd.leftSingularVectors;
+  if (U.rows !== r || U.columns < rank) {
+    throw new EngineError("internal", `row compression expected ${r} rows and at least ${rank} left singular vectors, got ${U.rows}×${U.columns}`, {});
+  }
+  const basis = new Float64Array(r * rank);
+  for (let i = 0; i < r; i++) for (let j = 0; j < rank; j++) basis[i * rank + j] = U.get(i, j);
+  return { rank, basis };
+}
+
+/** x ← P x on rows top..n−1 of a row-major n×w array, P = I − f·v·vᵀ (v zero above top). */
+function reflectRows(x: Float64Array, n: number, w: number, v: Float64Array, top: number, f: number): void {
+  for (let j = 0; j < w; j++) {
+    let s = 0;
+    for (let i = top; i < n; i++) s += v[i]! * x[i * w + j]!;
+    if (s === 0) continue;
+    s *= f;
+    for (let i = top; i < n; i++) x[i * w + j] -= s * v[i]!;
+  }
+}
+
+/** x ← x P on columns top..n−1 of a row-major n×n array. */
+function reflectColumns(x: Float64Array, n: number, v: Float64Array, top: number, f: number): void {
+  for (let i = 0; i < n; i++) {
+    const row = i * n;
+    let s = 0;
+    for (let j = top; j < n; j++) s += x[row + j]! * v[j]!;
+    if (s === 0) continue;
+    s *= f;
+    for (let j = top; j < n; j++) x[row + j] -= s * v[j]!;
+  }
 }
 
 export function checkTolerance(value: number, name: string): void {
@@ -189,7 +267,7 @@ export interface StructureReport {
  *   trailing uncontrollable (unobservable) block, by Francis QR. Equivalent to the PBH test
  *   rank[A − λI, B] = n at every eigenvalue λ (Hautus 1969), without a per-eigenvalue rank
  *   decision on nearby eigenvalues.
- * Cost: two staircases (O(n³) typically, O(n⁴) single-input worst case) plus eigenvalues of the
+ * Cost: two staircases (O(n³) each) plus eigenvalues of the
  *   removed blocks.
  * Accuracy: backward stable; rank decisions at tol = 100·n·ε·max(‖A‖_F, ‖B‖_F) (resp. ‖C‖_F).
  *   A mode is "stable" when Re λ < −δ (|λ| < 1 − δ), δ = 100·n·ε·max(1, ‖A‖_F).

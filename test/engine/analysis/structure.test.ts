@@ -115,6 +115,34 @@ describe("structure: controllability and observability by the staircase form", (
     expectEngineError(() => controllabilityStaircase(A, B, -1), "invalid-argument", /tol must be a finite non-negative number/);
   });
 
+  it("reduces a 40-state single-input pair with 10 planted uncontrollable states one state per step", () => {
+    // planted: Ã = [[A_c, A_12], [0, A_u]] (30 + 10 states), b̃ = [b_c; 0], rotated by a random Q.
+    // Checks: Z orthogonal and Z Ã Zᵀ = A to rounding (common practice), 30 blocks of size 1
+    // (single input), and every reported mode failing the PBH rank test (Hautus 1969), which
+    // the SVD in `pbhGap` decides independently of the staircase.
+    const n = 40, nc = 30;
+    const At = new Matrix(seededMatrix(n, n, 71)).mul(4);
+    for (let i = nc; i < n; i++) for (let j = 0; j < nc; j++) At.set(i, j, 0);
+    const Bt = new Matrix(seededMatrix(n, 1, 72));
+    for (let i = nc; i < n; i++) Bt.set(i, 0, 0);
+    const Q = orthogonal(n, 73);
+    const A = Q.mmul(At).mmul(Q.transpose());
+    const B = Q.mmul(Bt);
+    const s = controllabilityStaircase(A, B);
+    expect(s.controllableDimension).toBe(nc);
+    expect(s.blockSizes).toEqual(Array.from({ length: nc }, () => 1));
+    expectMatrixClose(s.Z.transpose().mmul(s.Z), Matrix.eye(n), 1e-13, "ZᵀZ");
+    expectMatrixClose(s.Z.mmul(s.A).mmul(s.Z.transpose()), A, 1e-12, "Z Ã Zᵀ");
+    expectMatrixClose(s.Z.mmul(s.B), B, 1e-13, "Z b̃");
+    for (let i = nc; i < n; i++) {
+      expect(s.B.get(i, 0)).toBe(0);
+      for (let j = 0; j < nc; j++) expect(s.A.get(i, j)).toBe(0);
+    }
+    const r = structure(stateSpaceFromMatrices({ A, B, C: new Matrix(Matrix.ones(1, n)) }));
+    expect(r.uncontrollableModes).toHaveLength(n - nc);
+    for (const l of r.uncontrollableModes) expectAtMost(pbhGap(A, B, l), 1e-10, `PBH gap at reported mode ${l.re}+${l.im}i`);
+  });
+
   it("agrees with the PBH definition on random systems with planted uncontrollable modes", () => {
     const prop = fc.property(
       fc.integer({ min: 1, max: 4 }), fc.integer({ min: 1, max: 3 }), fc.integer({ min: 1, max: 2 }), fc.integer({ min: 1, max: 100000 }),
