@@ -139,7 +139,7 @@ export function registerEngineIpc(
   const onRequest = async (event: IpcEventLike, ...args: unknown[]): Promise<Envelope<unknown>> => {
     try {
       if (!trusted(event)) {
-        throw invalid("the request came from a frame outside the app origin and was refused", { reason: "untrusted-sender" });
+        throw new EngineError("forbidden", "the request came from a frame outside the app origin and was refused", { reason: "untrusted-sender" });
       }
       if (args.length !== 1) throw invalid(`the request must be one argument; got ${args.length}`, { field: "request" });
       const request = validateIpcRequest(args[0], limits);

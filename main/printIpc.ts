@@ -162,11 +162,10 @@ function loadAndWaitForSheet(deps: PrintSheetDeps, window: HiddenSheetWindow, re
       clearTimer(timer);
       action();
     };
-    const fail = (kind: "invalid-argument" | "internal" | "no-convergence", message: string, details: Record<string, unknown> = {}) =>
+    const fail = (kind: "invalid-argument" | "internal" | "timeout", message: string, details: Record<string, unknown> = {}) =>
       finish(() => reject(new EngineError(kind, message, { route: request.route, ...details })));
-    // Waiting is a loop with one iteration per event; the cap is the time limit.
     const timer = setTimer(
-      () => fail("no-convergence", `The design sheet ${request.route} was not ready within ${limitMs} ms`, { reason: "timeout", limitMs, waitedMs: Date.now() - started }),
+      () => fail("timeout", `The design sheet ${request.route} was not ready within ${limitMs} ms`, { reason: "timeout", limitMs, waitedMs: Date.now() - started }),
       limitMs,
     );
     window.webContents.on("page-title-updated", (_event, title) => {
@@ -201,7 +200,7 @@ export function registerPrintSheetIpc(ipcMain: Pick<IpcMainLike, "handle" | "rem
       } catch {
         trusted = false;
       }
-      if (!trusted) throw new EngineError("invalid-argument", "the print request came from a frame outside the app origin and was refused", { reason: "untrusted-sender" });
+      if (!trusted) throw new EngineError("forbidden", "the print request came from a frame outside the app origin and was refused", { reason: "untrusted-sender" });
       const request = validatePrintSheetArgs(args);
       if (busy) throw new EngineError("conflict", "A design sheet is already being printed; wait until it is saved or cancelled", { route: request.route });
       busy = true;

@@ -19,6 +19,8 @@ export type EngineErrorKind =
   | "parse-error" // an expression or file could not be parsed
   | "validation" // a project file or record failed validation
   | "cancelled" // the caller cancelled a long request
+  | "timeout" // a request or page did not finish within its time limit (details.limitMs)
+  | "forbidden" // a request from a sender outside the app was refused (details.reason)
   | "conflict" // a save was based on an older revision than the stored one
   | "storage" // the local database refused a write (quota, disk full, blocked)
   | "internal"; // a bug: an invariant failed (never a user error)

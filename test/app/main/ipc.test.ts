@@ -62,10 +62,10 @@ describe("registerEngineIpc", () => {
     const { calls, invoke, event } = setup();
     for (const url of ["https://example.com/", "file:///tmp/x.html", "app://evil/index.html"]) {
       const answer = await invoke({ requestId: 1, method: "engine.info", params: {} }, event(url));
-      expect(answer).toMatchObject({ ok: false, error: { kind: "invalid-argument", details: { reason: "untrusted-sender" } } });
+      expect(answer).toMatchObject({ ok: false, error: { kind: "forbidden", details: { reason: "untrusted-sender" } } });
     }
     const noFrame = await invoke({ requestId: 1, method: "engine.info", params: {} }, { sender: createFakeSender(1), senderFrame: null });
-    expect(noFrame).toMatchObject({ ok: false, error: { kind: "invalid-argument" } });
+    expect(noFrame).toMatchObject({ ok: false, error: { kind: "forbidden" } });
     expect(calls).toHaveLength(0);
   });
 
@@ -180,7 +180,7 @@ describe("registerEngineIpc", () => {
       throw new Error("frame disposed");
     });
     const answer = await ipcMain.handlers.get(IPC_CHANNELS.request)!({ sender: createFakeSender(), senderFrame: { url: "app://loopwright/" } }, {});
-    expect(answer).toMatchObject({ ok: false, error: { kind: "invalid-argument" } });
+    expect(answer).toMatchObject({ ok: false, error: { kind: "forbidden" } });
   });
 });
 

@@ -61,7 +61,7 @@ describe("bridge contract: preload → IPC → engine host gives what dispatch()
     const api = createPreloadApi(pair.ipcRenderer);
     for (const contractCase of CONTRACT_CASES) {
       const answer = await api.request(contractCase.method as EngineMethod, contractCase.params as never);
-      expect(answer).toMatchObject({ ok: false, error: { kind: "invalid-argument", details: { reason: "untrusted-sender" } } });
+      expect(answer).toMatchObject({ ok: false, error: { kind: "forbidden", details: { reason: "untrusted-sender" } } });
     }
   });
 

@@ -132,7 +132,7 @@ describe("print-sheet IPC", () => {
   it("fails with no-convergence after the timeout when the sheet never reports ready, and closes the window", async () => {
     const t = setup({ behaviour: (w) => w.emit("page-title-updated", "Loopwright") });
     const answer = await t.api.printSheet!("#/sheet/p/v", "A4");
-    expect(answer).toMatchObject({ ok: false, error: { kind: "no-convergence", message: expect.stringMatching(/not ready within 40 ms/), details: { reason: "timeout", limitMs: 40 } } });
+    expect(answer).toMatchObject({ ok: false, error: { kind: "timeout", message: expect.stringMatching(/not ready within 40 ms/), details: { reason: "timeout", limitMs: 40 } } });
     expect(t.dialogs).toEqual([]);
     expect(t.windows[0]!.destroyed).toBe(true);
   });
@@ -166,7 +166,7 @@ describe("print-sheet IPC", () => {
   it("refuses a request from a frame outside the app origin and opens no window", async () => {
     const t = setup({ frameUrl: "https://example.com/" });
     const answer = await t.api.printSheet!("#/sheet/p/v", "A4");
-    expect(answer).toMatchObject({ ok: false, error: { kind: "invalid-argument", details: { reason: "untrusted-sender" } } });
+    expect(answer).toMatchObject({ ok: false, error: { kind: "forbidden", details: { reason: "untrusted-sender" } } });
     expect(t.windows).toHaveLength(0);
   });
 
