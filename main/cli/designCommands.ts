@@ -88,7 +88,7 @@ export function formatVariant(v: VariantResult): string {
   }
   if (v.robustness) {
     const r = v.robustness;
-    lines.push(`  robustness (${r.parameterNames.join(", ")}; ${r.samples} samples): ${r.allStable ? "all stable" : "NOT all stable"}, ${r.failedSamples} without an operating point; largest pole real part ${optional(r.largestRealPart, "", 4)}; worst gain margin ${optional(r.worstGainMarginDb, " dB")}, worst phase margin ${optional(r.worstPhaseMarginDeg, "°")}`);
+    lines.push(`  robustness (${r.parameterNames.join(", ")}; ${r.samples} samples): ${r.allStable ? "all stable" : "NOT all stable"}, ${r.failedSamples} without an operating point; ${r.sampleTime === null ? `largest pole real part ${optional(r.largestRealPart, "", 4)}` : `controller sampled at ${formatReal(r.sampleTime, 4)} s, largest pole magnitude ${optional(r.largestPoleMagnitude, "", 4)}`}; worst gain margin ${optional(r.worstGainMarginDb, " dB")}, worst phase margin ${optional(r.worstPhaseMarginDeg, "°")}`);
   }
   if (v.bode) lines.push(`  Bode (${v.bode.loop}): ${v.bode.frequency.length} frequencies from ${formatReal(v.bode.frequency[0]!, 4)} to ${formatReal(v.bode.frequency[v.bode.frequency.length - 1]!, 4)} rad/s`);
   for (const c of v.checks) lines.push(`  ${c.passed ? "pass" : "FAIL"}  ${c.name}: ${c.detail}`);

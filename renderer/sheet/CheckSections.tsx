@@ -115,7 +115,7 @@ export function RobustnessSection({ model, number }: { model: SheetModel; number
           variant="print"
           width={PLOT_WIDTH}
           height={380}
-          sampleTime={null}
+          sampleTime={r.sampleTime}
           title={`Closed-loop poles over the ${r.samples} parameter samples`}
           series={[{ name: "Swept closed loop (pole cloud)", poles: r.poleCloud, styleIndex: 0 }, { name: "Nominal design", poles: nominal, styleIndex: 1 }]}
         />

@@ -97,7 +97,12 @@ export function robustnessRows(result: VariantResult, variant: VariantSpec): Ter
     { term: "Sampling", value: how },
     { term: "Stable at every sample", value: r.allStable ? "yes" : "NO" },
     { term: "Failed samples", value: r.failedSamples === 0 ? "none" : `${r.failedSamples} of ${r.samples} (unstable, or no operating point)` },
-    { term: "Largest real part of the pole cloud", value: r.largestRealPart === null ? "— (every sample failed)" : rounded(r.largestRealPart) },
+    ...(r.sampleTime === null
+      ? [{ term: "Largest real part of the pole cloud", value: r.largestRealPart === null ? "— (every sample failed)" : rounded(r.largestRealPart) }]
+      : [
+          { term: "Controller", value: `sampled at ${r.sampleTime} s; plant through a zero-order hold at each sample` },
+          { term: "Largest pole magnitude |z| of the cloud", value: r.largestPoleMagnitude === null ? "— (every sample failed)" : rounded(r.largestPoleMagnitude) },
+        ]),
     { term: "Worst gain margin", value: r.worstGainMarginDb === null ? "unbounded or not computed" : `${rounded(r.worstGainMarginDb)} dB` },
     { term: "Worst phase margin", value: r.worstPhaseMarginDeg === null ? "unbounded or not computed" : `${rounded(r.worstPhaseMarginDeg)}°` },
     { term: "Margins computed on", value: r.marginsNote },

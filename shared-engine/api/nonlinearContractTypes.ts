@@ -112,10 +112,14 @@ export interface NonlinearRobustnessParams extends NonlinearPlantParams {
   /** Each parameter varied by ±percent of its value. */
   parameters: { name: string; percent: number }[];
   sampling: { kind: "grid"; pointsPerParameter: number } | { kind: "random"; samples: number; seed: number };
+  /** Sampled controller: its period in seconds (plant seen through a zero-order hold); null or absent: continuous. */
+  sampleTime?: number | null;
 }
 
 export interface NonlinearRobustnessResult {
   parameterNames: string[];
+  /** The controller's sample period; null when continuous (then the poles are s-plane). */
+  sampleTime: number | null;
   samples: {
     values: number[];
     poles: ComplexValue[];

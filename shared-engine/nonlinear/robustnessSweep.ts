@@ -1,13 +1,15 @@
 /**
  * Robustness of a fixed state-feedback gain to parameter changes: re-solve the operating point
  * and re-linearize at each parameter sample, then report closed-loop poles, stability and (for
- * a single input) loop margins at the plant input.
+ * a single input) loop margins at the plant input. The controller is continuous, or sampled at
+ * a period T with the plant seen through a zero-order hold (as the closed-loop simulation runs
+ * it).
  */
 import { Matrix } from "ml-matrix";
 import { loopMargins } from "../analysis/margins";
 import { EngineError, toErrorPayload, type ErrorPayload } from "../errors";
 import { asMatrix, eigenvalues, requireFinite, type Complex, type MatrixInput } from "../linalg";
-import { stateSpaceFromMatrices } from "../model";
+import { discretize, stateSpaceFromMatrices } from "../model";
 import { linearize } from "./linearize";
 import { solveOperatingPoint, type OperatingPointRequest } from "./operatingPoint";
 import type { CompiledNonlinearPlant } from "./plant";
@@ -28,6 +30,11 @@ export interface RobustnessSweepRequest {
   /** Parameters to vary, each by ±percent of its nominal value. */
   parameters: { name: string; percent: number }[];
   sampling: SweepSampling;
+  /**
+   * Sample period T (s) of a sampled controller, null or absent for a continuous one. Sampled:
+   * u[k] = −Kδx[k] − Ki·ξ[k], ξ[k+1] = ξ[k] + T·e[k], held over each period (zero-order hold).
+   */
+  sampleTime?: number | null;
   isCancelled?: () => boolean;
   onProgress?: (fraction: number) => void;
 }
@@ -47,6 +54,8 @@ export interface RobustnessSample {
 
 export interface RobustnessSweep {
   parameterNames: string[];
+  /** The controller's sample period, null when continuous (poles are then s-plane). */
+  sampleTime: number | null;
   samples: RobustnessSample[];
   /** Every sample solved and stable. */
   allStable: boolean;
@@ -79,15 +88,23 @@ function seededUniform(seed: number): () => number {
  *   −D_I Ki]]) with K (and Ki) fixed, stability (all Re λ < −10·ε·max(1, max|λ|)), and for a
  *   single input the gain and phase margin of the loop broken at the plant input,
  *   L(s) = [K Ki](sI − A_aug)⁻¹B_aug, A_aug = [[A, 0], [C_I, 0]], B_aug = [B; D_I].
+ *   Sampled controller (sampleTime T): the linearization is discretized by zero-order hold,
+ *   Φ = e^{AT}, Γ = ∫₀ᵀe^{Aτ}dτ·B, the accumulators are ξ[k+1] = ξ[k] + T·e[k], so the poles
+ *   are eig([[Φ − ΓK, −ΓKi], [T(C_I − D_I K), I − T·D_I Ki]]), stable when every |z| < 1 −
+ *   10·ε·max(1, max|z|), and the margins are those of L(z) = [K Ki](zI − A_aug)⁻¹B_aug with
+ *   A_aug = [[Φ, 0], [T·C_I, I]], B_aug = [Γ; T·D_I].
  * Requires: parameters declared, percent in [0, 100); grid points ≥ 2 (≤ 10,000 samples in
- *   total); K: m×n, Ki: m×r finite; a continuous-time controller.
+ *   total); K: m×n, Ki: m×r finite; sampleTime null or a positive finite number.
  * Method: `solveOperatingPoint` (damped Newton) warm-started from the nominal solution,
- *   `linearize` (exact AD Jacobians), `eigenvalues` (Francis QR), `loopMargins`. Samples whose
+ *   `linearize` (exact AD Jacobians), `discretize` (zero-order hold by the Van Loan block
+ *   exponential) when sampled, `eigenvalues` (Francis QR), `loopMargins`. Samples whose
  *   operating point fails are reported with their error and count as not stable.
- * Cost: per sample one Newton solve, one linearization, one eigenvalue problem of size n + r
+ * Cost: per sample one Newton solve, one linearization, (sampled) one matrix exponential of
+ *   size n + m, one eigenvalue problem of size n + r
  *   and, for m = 1, one margin computation (O(n³) + O(n²) per frequency).
  * Accuracy: poles as the eigenvalue routine (backward stable); margins as `loopMargins`.
- * Errors: "invalid-argument" (unknown parameter, bad percent or sampling, too many samples),
+ * Errors: "invalid-argument" (unknown parameter, bad percent or sampling, too many samples,
+ *   a sample time that is not a positive finite number),
  *   "shape-mismatch" (K, Ki), "cancelled" (isCancelled() returned true, details.completed),
  *   and the nominal operating point's errors (the sweep needs a nominal solution).
  * Example:
@@ -111,6 +128,11 @@ export function robustnessSweep(request: RobustnessSweepRequest): RobustnessSwee
   const Ki = request.integral ? asMatrix(request.integral.Ki, "Ki") : new Matrix(m, 0);
   requireFinite(Ki, "Ki");
   if (Ki.rows !== m || Ki.columns !== r) throw new EngineError("shape-mismatch", `Ki must be ${m}×${r} (it is ${Ki.rows}×${Ki.columns})`, { argument: "Ki" });
+
+  const T = request.sampleTime ?? null;
+  if (T !== null && !(typeof T === "number" && Number.isFinite(T) && T > 0)) {
+    throw new EngineError("invalid-argument", `sampleTime must be a positive finite number of seconds or null (it is ${String(T)})`, { argument: "sampleTime" });
+  }
 
   const nominal = plant.parameterValues;
   const varied = request.parameters.map((v, k) => {
@@ -150,7 +172,7 @@ export function robustnessSweep(request: RobustnessSweepRequest): RobustnessSwee
   const guess = (names: string[], values: number[]): Record<string, number> => Object.fromEntries(names.map((name, i) => [name, values[i]!]));
   const marginsApply = m === 1;
   const marginsNote = marginsApply
-    ? "gain and phase margins of the single-input loop broken at the plant input"
+    ? `gain and phase margins of the single-input loop broken at the plant input${T === null ? "" : ` (controller sampled at ${T} s, plant through a zero-order hold)`}`
     : `margins skipped: the loop has ${m} inputs and the margin routine handles single-input loops only`;
 
   const samples: RobustnessSample[] = [];
@@ -167,12 +189,22 @@ export function robustnessSweep(request: RobustnessSweepRequest): RobustnessSwee
       });
       // Fixed (non-unknown) states and inputs keep the requested values, not the nominal solution.
       const { model } = linearize(plant, point);
-      const Acl = closedLoopMatrix(model.A, model.B, model.C, model.D, K, Ki, tracked);
+      // Sampled: the plant as the controller sees it, through a zero-order hold at period T.
+      const seen = T === null ? model : discretize(model, T, { method: "zoh" });
+      const Acl = closedLoopMatrix(seen.A, seen.B, seen.C, seen.D, K, Ki, tracked);
+      if (T !== null) {
+        // accumulators ξ[k+1] = ξ[k] + T·e[k]: the integrator rows scale by T, plus the identity
+        for (let i = 0; i < tracked.length; i++) {
+          for (let j = 0; j < Acl.columns; j++) Acl.set(n + i, j, T * Acl.get(n + i, j));
+          Acl.set(n + i, n + i, Acl.get(n + i, n + i) + 1);
+        }
+      }
       sample.poles = eigenvalues(Acl);
       const scale = Math.max(1, ...sample.poles.map((z) => Math.hypot(z.re, z.im)));
-      sample.stable = sample.poles.every((z) => z.re < -10 * Number.EPSILON * scale);
+      const band = 10 * Number.EPSILON * scale;
+      sample.stable = T === null ? sample.poles.every((z) => z.re < -band) : sample.poles.every((z) => Math.hypot(z.re, z.im) < 1 - band);
       if (marginsApply) {
-        const loop = loopAtInput(model.A, model.B, model.C, model.D, K, Ki, tracked);
+        const loop = loopAtInput(seen.A, seen.B, seen.C, seen.D, K, Ki, tracked, T);
         const margins = loopMargins(loop);
         sample.gainMarginDb = margins.gainMarginDb;
         sample.phaseMarginDeg = margins.phaseMarginDeg;
@@ -192,6 +224,7 @@ export function robustnessSweep(request: RobustnessSweepRequest): RobustnessSwee
   };
   return {
     parameterNames: varied.map((v) => v.name),
+    sampleTime: T,
     samples,
     allStable: samples.every((s) => s.stable),
     failedSamples: samples.filter((s) => s.error !== null).length,
@@ -201,8 +234,12 @@ export function robustnessSweep(request: RobustnessSweepRequest): RobustnessSwee
   };
 }
 
-/** L(s) = [K Ki](sI − A_aug)⁻¹B_aug with A_aug = [[A, 0], [C_I, 0]], B_aug = [B; D_I]. */
-function loopAtInput(A: Matrix, B: Matrix, C: Matrix, D: Matrix, K: Matrix, Ki: Matrix, tracked: number[]) {
+/**
+ * L(s) = [K Ki](sI − A_aug)⁻¹B_aug with A_aug = [[A, 0], [C_I, 0]], B_aug = [B; D_I]; sampled
+ * (T not null, A and B already the zero-order-hold Φ and Γ): L(z) with A_aug = [[Φ, 0],
+ * [T·C_I, I]], B_aug = [Γ; T·D_I].
+ */
+function loopAtInput(A: Matrix, B: Matrix, C: Matrix, D: Matrix, K: Matrix, Ki: Matrix, tracked: number[], T: number | null) {
   const n = A.rows, m = B.columns, r = tracked.length;
   const Aa = new Matrix(n + r, n + r);
   const Ba = new Matrix(n + r, m);
@@ -211,13 +248,15 @@ function loopAtInput(A: Matrix, B: Matrix, C: Matrix, D: Matrix, K: Matrix, Ki: 
     for (let j = 0; j < n; j++) Aa.set(i, j, A.get(i, j));
     for (let j = 0; j < m; j++) Ba.set(i, j, B.get(i, j));
   }
+  const h = T ?? 1;
   tracked.forEach((t, i) => {
-    for (let j = 0; j < n; j++) Aa.set(n + i, j, C.get(t, j));
-    for (let j = 0; j < m; j++) Ba.set(n + i, j, D.get(t, j));
+    for (let j = 0; j < n; j++) Aa.set(n + i, j, h * C.get(t, j));
+    for (let j = 0; j < m; j++) Ba.set(n + i, j, h * D.get(t, j));
+    if (T !== null) Aa.set(n + i, n + i, 1);
   });
   for (let i = 0; i < m; i++) {
     for (let j = 0; j < n; j++) Ca.set(i, j, K.get(i, j));
     for (let j = 0; j < r; j++) Ca.set(i, n + j, Ki.get(i, j));
   }
-  return stateSpaceFromMatrices({ A: Aa, B: Ba, C: Ca });
+  return stateSpaceFromMatrices({ A: Aa, B: Ba, C: Ca, sampleTime: T });
 }

@@ -8,7 +8,6 @@
  * u = u0 + sat(−K(x − x0) − Ki_sim·∫e). The same control law therefore needs Ki_sim = −Ki.
  */
 import type { Matrix } from "ml-matrix";
-import { EngineError } from "../errors";
 import { robustnessSweep, simulateClosedLoop } from "../nonlinear";
 import type { BuiltNonlinearPlant } from "./buildPlant";
 import type { VariantSpec } from "./format";
@@ -131,23 +130,28 @@ export function runNonlinearCheck(built: BuiltNonlinearPlant, variant: VariantSp
 
 /**
  * Computes: `result.robustness` and the check "robust-stability": the fixed gain [K Ki] on the
- *   re-solved, re-linearized plant at each parameter sample (grid or seeded random).
- * Requires: a continuous-time state-feedback design (no `discretize`) on a nonlinear plant.
+ *   re-solved, re-linearized plant at each parameter sample (grid or seeded random); with
+ *   `discretize`, the controller sampled at its period and the plant seen through a
+ *   zero-order hold (the law the nonlinear check simulates).
+ * Requires: a state-feedback design on a nonlinear plant.
  * Method: `robustnessSweep` with Ki_sim = −Ki (see the file comment). The check passes when
- *   every sample's operating point was solved and its closed loop is stable.
+ *   every sample's operating point was solved and its closed loop is stable (continuous: value
+ *   the largest real part, limit 0; sampled: value the largest |z|, limit 1).
  * Cost: per sample one Newton solve, one eigenvalue problem of size n + r, and for one input
  *   one margin computation.
  * Accuracy: poles as the eigenvalue routine (backward stable).
- * Errors: "invalid-argument" (a sampled design, unknown parameter, bad sampling), and the
+ * Errors: "invalid-argument" (unknown parameter, bad sampling), and the
  *   nominal operating point's errors.
  * Example: the queue example with μ and K ±20 % on a 5×5 grid: 25 samples, all stable.
  */
 export function runRobustness(built: BuiltNonlinearPlant, variant: VariantSpec, gains: FeedbackGains, result: VariantResult): void {
   const spec = variant.robustness!;
-  if (variant.discretize) {
-    throw new EngineError("invalid-argument", "the sweep checks a continuous-time controller; remove discretize or sweep a continuous variant", {});
+  const sampleTime = variant.discretize?.sampleTime ?? null;
+  if (variant.discretize && variant.discretize.method !== "zoh") {
+    result.warnings.push(`robustness: the gain was designed on a ${variant.discretize.method} model; the sweep sees the plant through a zero-order hold`);
   }
   const sweep = robustnessSweep({
+    sampleTime,
     plant: built.plant,
     operatingPoint: built.request,
     K: gains.K,
@@ -156,7 +160,9 @@ export function runRobustness(built: BuiltNonlinearPlant, variant: VariantSpec, 
     sampling: spec.sampling,
   });
   const cloud = sweep.samples.flatMap((s) => s.poles.map((z) => ({ re: z.re, im: z.im })));
-  const largestRealPart = cloud.length > 0 ? Math.max(...cloud.map((z) => z.re)) : null;
+  const largestRealPart = cloud.length > 0 && sampleTime === null ? Math.max(...cloud.map((z) => z.re)) : null;
+  const largestPoleMagnitude = cloud.length > 0 && sampleTime !== null ? Math.max(...cloud.map((z) => Math.hypot(z.re, z.im))) : null;
+  const [measure, value, limit] = sampleTime === null ? ["largest real part", largestRealPart, 0] : ["largest pole magnitude", largestPoleMagnitude, 1];
   result.robustness = {
     parameterNames: sweep.parameterNames,
     samples: sweep.samples.length,
@@ -165,7 +171,9 @@ export function runRobustness(built: BuiltNonlinearPlant, variant: VariantSpec, 
     worstGainMarginDb: sweep.worstGainMarginDb,
     worstPhaseMarginDeg: sweep.worstPhaseMarginDeg,
     poleCloud: cloud,
+    sampleTime,
     largestRealPart,
+    largestPoleMagnitude,
     marginsNote: sweep.marginsNote,
   };
   const unstable = sweep.samples.filter((s) => !s.stable && s.error === null).length;
@@ -174,8 +182,8 @@ export function runRobustness(built: BuiltNonlinearPlant, variant: VariantSpec, 
     name: "robust-stability",
     passed: sweep.allStable,
     detail: sweep.allStable
-      ? `all ${sweep.samples.length} parameter samples (${sweep.parameterNames.join(", ")}) give a stable closed loop (largest real part ${largestRealPart === null ? "none" : largestRealPart.toExponential(3)})`
+      ? `all ${sweep.samples.length} parameter samples (${sweep.parameterNames.join(", ")}) give a stable closed loop${sampleTime === null ? "" : ` sampled at ${sampleTime} s`} (${measure} ${value === null ? "none" : value.toExponential(3)})`
       : `${unstable} of ${sweep.samples.length} samples unstable, ${sweep.failedSamples} without an operating point${firstError ? ` (first: ${firstError.message})` : ""}`,
-    ...(largestRealPart !== null ? { value: largestRealPart, limit: 0 } : {}),
+    ...(value !== null ? { value, limit } : {}),
   });
 }

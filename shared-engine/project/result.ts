@@ -189,8 +189,12 @@ export interface VariantResult {
     worstPhaseMarginDeg: number | null;
     /** The closed-loop poles of every sample, together. */
     poleCloud: ComplexJson[];
-    /** The largest real part in the pole cloud (null when every sample failed). */
+    /** The controller's sample period (s), null for a continuous controller (s-plane poles). */
+    sampleTime: number | null;
+    /** Continuous: the largest real part in the pole cloud (null when sampled or every sample failed). */
     largestRealPart: number | null;
+    /** Sampled: the largest pole magnitude |z| in the cloud (null when continuous or every sample failed). */
+    largestPoleMagnitude: number | null;
     marginsNote: string;
   };
   checks: Check[];

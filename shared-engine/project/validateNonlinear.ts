@@ -228,7 +228,6 @@ export function checkNonlinearVariantKeys(c: Checker, v: Record<string, unknown>
   }
   if (v.robustness !== undefined) {
     const p = [...path, "robustness"];
-    if (v.discretize !== undefined) c.problem(p, "checks a continuous-time controller; it cannot be combined with discretize (sweep a continuous variant)");
     const rb = c.object(v.robustness, p, ["parameters", "sampling"]);
     if (rb) {
       const params = c.array(rb.parameters, [...p, "parameters"], { nonEmpty: true }) ?? [];

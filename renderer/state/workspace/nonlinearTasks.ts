@@ -51,7 +51,6 @@ export function nonlinearSimulateParams(doc: ProjectFile, variant: VariantSpec, 
 /** Robustness sweep: the variant's own spec, else every parameter ±20 % on a 5-point grid (common practice for a first look). */
 export function robustnessParams(doc: ProjectFile, variant: VariantSpec, evaluated: VariantResult | null): NonlinearRobustnessParams {
   const result = requireGain(evaluated, variant);
-  if (variant.discretize) throw new Error("The robustness sweep checks a continuous-time controller; choose a continuous variant (this one is sampled).");
   const model = nonlinearModelOf(doc, variant.plant);
   const integral = integralOf(doc, variant, result);
   const parameters = variant.robustness?.parameters ?? model.parameters.slice(0, 2).map((p) => ({ name: p.name, percent: 20 }));
@@ -63,5 +62,6 @@ export function robustnessParams(doc: ProjectFile, variant: VariantSpec, evaluat
     ...(integral ? { integral } : {}),
     parameters,
     sampling: variant.robustness?.sampling ?? { kind: "grid", pointsPerParameter: 5 },
+    sampleTime: variant.discretize?.sampleTime ?? null,
   };
 }

@@ -74,7 +74,7 @@ export function NonlinearCheckPanel({ bridge, document, variant, result, styleIn
               {rob.result.allStable ? "✓ Stable at every sample" : "✗ Not stable at every sample"} ({rob.result.samples.length} samples over {rob.result.parameterNames.join(", ")}, {rob.result.failedSamples} failed).
               Worst gain margin {rob.result.worstGainMarginDb === null ? "—" : `${rob.result.worstGainMarginDb.toFixed(1)} dB`}, worst phase margin {rob.result.worstPhaseMarginDeg === null ? "—" : `${rob.result.worstPhaseMarginDeg.toFixed(1)}°`}. {rob.result.marginsNote}
             </p>
-            <PoleZeroMap title="Closed-loop poles over the sweep" width={Math.min(width, 560)} height={320} fileName={`${variant.id}-pole-cloud`}
+            <PoleZeroMap title="Closed-loop poles over the sweep" width={Math.min(width, 560)} height={320} fileName={`${variant.id}-pole-cloud`} sampleTime={rob.result.sampleTime}
               series={[{ name: "Swept closed loop", poles: rob.result.samples.flatMap((s) => s.poles), styleIndex }, { name: "Nominal design", poles: result?.closedLoopPoles ?? [], styleIndex: styleIndex + 1 }]} />
           </>
         )}

@@ -146,6 +146,7 @@ export const nonlinearHandlers = {
     const K = requireMatrixParam(p, "K");
     const integral = optionalIntegralParam(p, "integral", { antiWindup: false });
     const parameters = requireParameterSpread(p.parameters);
+    const sampleTime = optionalSampleTimeParam(p);
     const sampling = p.sampling;
     if (sampling === null || typeof sampling !== "object" || Array.isArray(sampling)) {
       throw new EngineError("invalid-argument", 'sampling must be {kind: "grid", pointsPerParameter} or {kind: "random", samples, seed}', { field: "sampling" });
@@ -163,6 +164,7 @@ export const nonlinearHandlers = {
           ...(integral ? { integral: { outputs: integral.outputs, Ki: integral.Ki } } : {}),
           parameters,
           sampling: sampling as Parameters<typeof robustnessSweep>[0]["sampling"],
+          sampleTime,
           isCancelled: () => context.isCancelled(),
           onProgress,
         }),

@@ -200,6 +200,23 @@ describe("nonlinear.robustness", () => {
     const e = await failure("nonlinear.robustness", { ...sweep, sampling: { kind: "grid", pointsPerParameter: 20 } }, context);
     expect(e.kind).toBe("cancelled");
   });
+
+  it("sweeps a controller sampled at T through a zero-order hold: pole e^{pT}·… from the scalar closed form", async () => {
+    const T = 2;
+    const r = await call("nonlinear.robustness", { ...sweep, sampleTime: T }, recorder().context);
+    expect(r.sampleTime).toBe(T);
+    for (const s of r.samples) {
+      const a = s.values[0]!;
+      // Hand-worked: the scalar linearization δh' = α·δh + β·δq with α = −a√(2g)/(2√h₀)/A,
+      // β = 1/A; zero-order hold Φ = e^{αT}, Γ = β(e^{αT} − 1)/α; sampled pole Φ − Γ·K.
+      const alpha = (-a * Math.sqrt(2 * GRAVITY)) / (2 * Math.sqrt(1.7)) / TANK_AREA;
+      const Phi = Math.exp(alpha * T), Gamma = ((1 / TANK_AREA) * (Phi - 1)) / alpha;
+      expectComplexSetsClose(s.poles, [{ re: Phi - Gamma * 0.5, im: 0 }], 1e-13, `z-plane pole at a = ${a}`);
+      expect(s.stable).toBe(true);
+    }
+    const bad = await failure("nonlinear.robustness", { ...sweep, sampleTime: -1 });
+    expect(bad.kind).toBe("invalid-argument");
+  });
 });
 
 describe("nonlinear parameter checks", () => {

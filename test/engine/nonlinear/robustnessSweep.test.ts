@@ -3,6 +3,7 @@ import { EngineError } from "../../../shared-engine/errors";
 import { compileNonlinearPlant, robustnessSweep } from "../../../shared-engine/nonlinear";
 import { expectComplexSetsClose } from "../../helpers/assertions";
 import { pendulum, tank } from "./plantModels";
+import type { NonlinearPlantSpec } from "../../../shared-engine/nonlinear";
 
 describe("robustnessSweep", () => {
   const plant = compileNonlinearPlant(pendulum);
@@ -66,5 +67,68 @@ describe("robustnessSweep", () => {
   it("rejects unknown parameters and oversized grids", () => {
     expect(() => robustnessSweep({ ...base, parameters: [{ name: "zeta", percent: 10 }], sampling: { kind: "grid", pointsPerParameter: 3 } })).toThrow(/'zeta' is not a declared parameter/);
     expect(() => robustnessSweep({ ...base, parameters: [{ name: "l", percent: 10 }, { name: "c", percent: 10 }, { name: "m", percent: 10 }], sampling: { kind: "grid", pointsPerParameter: 30 } })).toThrow(/27000 samples/);
+  });
+
+  describe("with a sampled controller (zero-order hold)", () => {
+    // A first-order plant typed as an equation: x' = a·x + b·u, y = x (a, b the swept parameters).
+    const firstOrder: NonlinearPlantSpec = {
+      states: [{ name: "x" }],
+      inputs: [{ name: "u" }],
+      disturbances: [],
+      parameters: [{ name: "a", value: 0.5 }, { name: "b", value: 2 }],
+      stateEquations: { x: "a*x + b*u" },
+      outputs: [{ name: "y", equation: "x" }],
+    };
+    const lin = compileNonlinearPlant(firstOrder);
+    const at = { plant: lin, operatingPoint: { unknowns: ["u"], states: { x: 0 } } };
+    // Hand-derived zero-order hold of x' = a x + b u: Φ = e^{aT}, Γ = b(e^{aT} − 1)/a.
+    const zoh = (a: number, b: number, T: number) => ({ Phi: Math.exp(a * T), Gamma: (b * (Math.exp(a * T) - 1)) / a });
+
+    it("gives the hand-derived sampled pole Φ − ΓK and the gain margin (1 + Φ)/(KΓ) at z = −1", () => {
+      const T = 0.05, K = 3;
+      const sweep = robustnessSweep({ ...at, K: [[K]], sampleTime: T, parameters: [{ name: "a", percent: 20 }], sampling: { kind: "grid", pointsPerParameter: 3 } });
+      expect(sweep.sampleTime).toBe(T);
+      for (const s of sweep.samples) {
+        const { Phi, Gamma } = zoh(s.values[0]!, 2, T);
+        expectComplexSetsClose(s.poles, [{ re: Phi - Gamma * K, im: 0 }], 1e-12, `pole at a = ${s.values[0]}`);
+        expect(s.stable).toBe(true);
+        // L(z) = KΓ/(z − Φ) has phase −180° only at z = −1 (ω = π/T): |L(−1)| = KΓ/(1 + Φ).
+        expect(s.gainMarginDb!).toBeCloseTo(20 * Math.log10((1 + Phi) / (K * Gamma)), 6);
+      }
+      expect(sweep.marginsNote).toContain("sampled at 0.05 s");
+    });
+
+    it("finds the loop unstable at a long period where the continuous loop is stable", () => {
+      // continuous pole a − bK = −5.5 ± 20 %; sampled at T = 1 s: Φ − ΓK ≈ −6.1, outside the unit circle.
+      const continuous = robustnessSweep({ ...at, K: [[3]], parameters: [{ name: "a", percent: 20 }], sampling: { kind: "grid", pointsPerParameter: 3 } });
+      expect(continuous.allStable).toBe(true);
+      expect(continuous.sampleTime).toBeNull();
+      const sampled = robustnessSweep({ ...at, K: [[3]], sampleTime: 1, parameters: [{ name: "a", percent: 20 }], sampling: { kind: "grid", pointsPerParameter: 3 } });
+      expect(sampled.samples.map((s) => s.stable)).toEqual([false, false, false]);
+      const { Phi, Gamma } = zoh(0.5, 2, 1);
+      expectComplexSetsClose(sampled.samples[1]!.poles, [{ re: Phi - 3 * Gamma, im: 0 }], 1e-12);
+    });
+
+    it("includes the accumulator ξ[k+1] = ξ[k] + T·e[k] of integral action", () => {
+      const T = 0.1, K = 1.5, Ki = -0.8; // simulator convention: u = −Kx − Ki·ξ, ξ accumulates y − r
+      const sweep = robustnessSweep({ ...at, K: [[K]], integral: { outputs: ["y"], Ki: [[Ki]] }, sampleTime: T, parameters: [{ name: "b", percent: 10 }], sampling: { kind: "grid", pointsPerParameter: 2 } });
+      for (const s of sweep.samples) {
+        const { Phi, Gamma } = zoh(0.5, s.values[0]!, T);
+        // hand-derived: M = [[Φ − ΓK, −ΓKi], [T, 1]]; eigenvalues from trace and determinant
+        const tr = Phi - Gamma * K + 1, det = Phi - Gamma * K + T * Gamma * Ki;
+        const disc = tr * tr - 4 * det;
+        const expected = disc >= 0
+          ? [{ re: (tr + Math.sqrt(disc)) / 2, im: 0 }, { re: (tr - Math.sqrt(disc)) / 2, im: 0 }]
+          : [{ re: tr / 2, im: Math.sqrt(-disc) / 2 }, { re: tr / 2, im: -Math.sqrt(-disc) / 2 }];
+        expectComplexSetsClose(s.poles, expected, 1e-12, `poles at b = ${s.values[0]}`);
+        expect(s.stable).toBe(expected.every((z) => Math.hypot(z.re, z.im) < 1));
+      }
+    });
+
+    it("rejects a sample time that is not a positive finite number", () => {
+      for (const bad of [0, -1, Number.NaN, Number.POSITIVE_INFINITY]) {
+        expect(() => robustnessSweep({ ...at, K: [[1]], sampleTime: bad, parameters: [{ name: "a", percent: 10 }], sampling: { kind: "grid", pointsPerParameter: 2 } })).toThrow(/sampleTime must be a positive finite number/);
+      }
+    });
   });
 });

@@ -119,6 +119,25 @@ describe("nonlinear plants in the pipeline", () => {
     expect(r.checks.find((c) => c.name === "robust-stability")!.passed).toBe(true);
   });
 
+  it("a sampled design's sweep at zero spread reproduces the design's z-plane poles and judges them by the unit circle", () => {
+    // The design discretizes the linearization by zero-order hold and adds accumulators
+    // xᵢ[k+1] = xᵢ[k] + T(r − y); the sweep rebuilds the same loop from the re-solved point.
+    const r = evaluateVariant(queue, lqrIntegral({
+      discretize: { sampleTime: 2, method: "zoh" },
+      robustness: { parameters: [{ name: "mu", percent: 0 }], sampling: { kind: "grid", pointsPerParameter: 2 } },
+    }));
+    expect(r.error).toBeUndefined();
+    const rb = r.robustness!;
+    expect(rb.sampleTime).toBe(2);
+    expect(rb.largestRealPart).toBeNull();
+    expectComplexSetsClose(rb.poleCloud.slice(0, 3), r.closedLoopPoles!, 1e-9, "nominal sample poles (z-plane)");
+    const largest = Math.max(...r.closedLoopPoles!.map((z) => Math.hypot(z.re, z.im)));
+    expectRelativeClose(rb.largestPoleMagnitude!, largest, 1e-9, "largest |z|");
+    const check = r.checks.find((c) => c.name === "robust-stability")!;
+    expect(check).toMatchObject({ passed: true, limit: 1 });
+    expect(check.detail).toMatch(/sampled at 2 s \(largest pole magnitude/);
+  });
+
   it("a sweep wide enough to lose the operating point reports failed samples and fails robust-stability", () => {
     // μ down by 99 % cannot drain λ = 2000 msg/s with at most 120 consumers: no operating point inside the bounds.
     const r = evaluateVariant(queue, lqrIntegral({ robustness: { parameters: [{ name: "mu", percent: 99 }], sampling: { kind: "grid", pointsPerParameter: 3 } } }));

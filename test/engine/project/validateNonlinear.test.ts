@@ -110,8 +110,6 @@ describe("validation of nonlinear plants", () => {
       "variants[0].robustness.sampling.pointsPerParameter", /at least 2/],
     ["random sampling without an integer seed", (p) => { (p.variants[0]!.robustness as Record<string, unknown>).sampling = { kind: "random", samples: 10, seed: 1.5 }; },
       "variants[0].robustness.sampling.seed", /whole number/],
-    ["a robustness sweep of a sampled design", (p) => { p.variants[0]!.discretize = { sampleTime: 1, method: "zoh" }; },
-      "variants[0].robustness", /cannot be combined with discretize/],
   ];
 
   it.each(catalogue)("rejects %s with a problem at its JSON path", (_title, change, path, message) => {

@@ -24,7 +24,7 @@ const disturbance = (peakDeviation: number, settlingTime: number | null, steadyS
 });
 type Robustness = NonNullable<VariantResult["robustness"]>;
 const robustness = (allStable: boolean, worstPhaseMarginDeg: number | null, failedSamples = allStable ? 0 : 3): Robustness => ({
-  parameterNames: ["p"], samples: 9, allStable, failedSamples, worstGainMarginDb: null, worstPhaseMarginDeg, poleCloud: [], largestRealPart: -1, marginsNote: "",
+  parameterNames: ["p"], samples: 9, allStable, failedSamples, worstGainMarginDb: null, worstPhaseMarginDeg, poleCloud: [], sampleTime: null, largestRealPart: -1, largestPoleMagnitude: null, marginsNote: "",
 });
 type Nonlinear = NonNullable<VariantResult["nonlinear"]>;
 const nonlinear = (size: number): Nonlinear => ({
