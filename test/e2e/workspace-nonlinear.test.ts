@@ -2,7 +2,8 @@
  * The nonlinear side of the workspace in browser mode (Chromium, real IndexedDB, the engine in a
  * Web Worker): open the demo, edit the nonlinear plant's equations (a syntax error shows its
  * caret and message, the fix clears it), solve the operating point, linearize into a new plant,
- * and run the nonlinear check with its progress bar and the dashed linear overlay.
+ * and run the nonlinear check with its progress bar and the dashed linear overlay, then the
+ * parameter sweep of the same sampled controller.
  * Screenshots go to test-output/e2e/workspace-nl-*.png.
  */
 import { describe, expect, it } from "vitest";
@@ -65,6 +66,15 @@ describe("nonlinear plant in the workspace", () => {
       // The dashed overlay is drawn.
       expect(await page.locator('[data-testid="nonlinear-overlay"] path[stroke-dasharray]').count()).toBeGreaterThan(0);
       await page.screenshot({ path: screenshotPath("workspace-nl-check.png") });
+
+      // The parameter sweep of the same sampled variant: z-plane poles judged by the unit circle.
+      await page.getByRole("button", { name: "Run parameter sweep" }).click();
+      const summary = page.getByTestId("sweep-summary");
+      await summary.waitFor({ timeout: 30_000 });
+      expect(await summary.textContent()).toMatch(/Stable at every sample \(25 samples over mu, K, 0 failed\)/);
+      expect(await summary.textContent()).toContain("controller sampled at 1 s");
+      await summary.scrollIntoViewIfNeeded();
+      await page.screenshot({ path: screenshotPath("workspace-nl-sweep-sampled.png") });
 
       // The shortcuts panel opens with "?".
       await page.locator("body").click({ position: { x: 5, y: 5 } });
