@@ -6,7 +6,7 @@
 import { Matrix, SingularValueDecomposition } from "ml-matrix";
 import { EngineError } from "../errors";
 import { eigenvalues, type Complex } from "../linalg";
-import { matrixOfRowMajor, rowMajorOf } from "../linalg/kernels";
+import { matrixOfRowMajor, reflectColumns, reflectRows, rowMajorOf } from "../linalg/kernels";
 import type { StateSpace } from "../model";
 import { boundaryDistance, stabilityTolerance } from "./stability";
 
@@ -204,29 +204,6 @@ function leadingLeftSingularVectors(G: Matrix, tol: number): { rank: number; bas
   const basis = new Float64Array(r * rank);
   for (let i = 0; i < r; i++) for (let j = 0; j < rank; j++) basis[i * rank + j] = U.get(i, j);
   return { rank, basis };
-}
-
-/** x ← P x on rows top..n−1 of a row-major n×w array, P = I − f·v·vᵀ (v zero above top). */
-function reflectRows(x: Float64Array, n: number, w: number, v: Float64Array, top: number, f: number): void {
-  for (let j = 0; j < w; j++) {
-    let s = 0;
-    for (let i = top; i < n; i++) s += v[i]! * x[i * w + j]!;
-    if (s === 0) continue;
-    s *= f;
-    for (let i = top; i < n; i++) x[i * w + j] -= s * v[i]!;
-  }
-}
-
-/** x ← x P on columns top..n−1 of a row-major n×n array. */
-function reflectColumns(x: Float64Array, n: number, v: Float64Array, top: number, f: number): void {
-  for (let i = 0; i < n; i++) {
-    const row = i * n;
-    let s = 0;
-    for (let j = top; j < n; j++) s += x[row + j]! * v[j]!;
-    if (s === 0) continue;
-    s *= f;
-    for (let j = top; j < n; j++) x[row + j] -= s * v[j]!;
-  }
 }
 
 export function checkTolerance(value: number, name: string): void {

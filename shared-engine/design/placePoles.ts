@@ -7,6 +7,7 @@ import { Matrix, SingularValueDecomposition, pseudoInverse } from "ml-matrix";
 import { EngineError } from "../errors";
 import type { Complex } from "../linalg/complex";
 import { eigenvalues, eigenvectors } from "../linalg/eigen";
+import { reflectColumns, reflectRows } from "../linalg/kernels";
 import { asMatrix, fromFloat64, requireFinite, requireNonEmpty, requireSquareFinite, shapeOf, toFloat64, type MatrixInput } from "../linalg/validate";
 import { firstOccurrence, formatPole, maxRelativePoleError, normalizePoleSet } from "./poleSpec";
 import { placeSingleInputHessenberg, solveTrailingRows } from "./placeSingleInput";
@@ -297,27 +298,4 @@ export function controllabilityStaircase(a: Float64Array, b: Float64Array, n: nu
     inB = false;
   }
   return { nc: n, r, q };
-}
-
-/** x ← P x on rows top..n−1 of a row-major n×w array, P = I − f vvᵀ. */
-function reflectRows(x: Float64Array, n: number, w: number, v: Float64Array, top: number, f: number): void {
-  for (let j = 0; j < w; j++) {
-    let s = 0;
-    for (let i = top; i < n; i++) s += v[i]! * x[i * w + j]!;
-    if (s === 0) continue;
-    s *= f;
-    for (let i = top; i < n; i++) x[i * w + j] -= s * v[i]!;
-  }
-}
-
-/** x ← x P on columns top..n−1 of a row-major n×n array. */
-function reflectColumns(x: Float64Array, n: number, v: Float64Array, top: number, f: number): void {
-  for (let i = 0; i < n; i++) {
-    const row = i * n;
-    let s = 0;
-    for (let j = top; j < n; j++) s += x[row + j]! * v[j]!;
-    if (s === 0) continue;
-    s *= f;
-    for (let j = top; j < n; j++) x[row + j] -= s * v[j]!;
-  }
 }

@@ -8,3 +8,4 @@ export { balanceInPlace } from "./balance";
 export { rowMajorOf, matrixOfRowMajor, multiply, transpose, oneNormRowMajor, solveInPlace } from "./denseKernels";
 export { realSchurRowMajor, defaultSchurIterationLimit, eigenvaluesOfQuasiTriangular, francisQRInPlace } from "./schur";
 export { reorderSchurInPlace } from "./reorderSchur";
+export { reflectColumns, reflectRows } from "./reflectors";
