@@ -45,7 +45,7 @@ export interface RobustnessSample {
   /** Closed-loop poles (empty when the sample failed). */
   poles: Complex[];
   stable: boolean;
-  /** Single-input loops only; null otherwise or when the sample failed. */
+  /** Loop margins at the plant input (the worst channel, loop at a time, for several inputs); null when infinite or the sample failed. */
   gainMarginDb: number | null;
   phaseMarginDeg: number | null;
   /** Why the operating point or linearization failed at this sample. */
@@ -85,9 +85,10 @@ function seededUniform(seed: number): () => number {
  * Computes: for parameter vectors p = p_nom·(1 + δ), δ_i ∈ [−percent_i, +percent_i]/100 (a grid
  *   with the end points, or seeded uniform samples), the operating point (re-solved), the
  *   linearization (A, B, C, D), the closed-loop poles eig([[A − BK, −BKi], [C_I − D_I K,
- *   −D_I Ki]]) with K (and Ki) fixed, stability (all Re λ < −10·ε·max(1, max|λ|)), and for a
- *   single input the gain and phase margin of the loop broken at the plant input,
- *   L(s) = [K Ki](sI − A_aug)⁻¹B_aug, A_aug = [[A, 0], [C_I, 0]], B_aug = [B; D_I].
+ *   −D_I Ki]]) with K (and Ki) fixed, stability (all Re λ < −10·ε·max(1, max|λ|)), and the
+ *   gain and phase margins of the loop broken at the plant input, L(s) = [K Ki](sI −
+ *   A_aug)⁻¹B_aug, A_aug = [[A, 0], [C_I, 0]], B_aug = [B; D_I]; with several inputs, loop at a
+ *   time (each input broken in turn, the others closed) and the worst channel reported.
  *   Sampled controller (sampleTime T): the linearization is discretized by zero-order hold,
  *   Φ = e^{AT}, Γ = ∫₀ᵀe^{Aτ}dτ·B, the accumulators are ξ[k+1] = ξ[k] + T·e[k], so the poles
  *   are eig([[Φ − ΓK, −ΓKi], [T(C_I − D_I K), I − T·D_I Ki]]), stable when every |z| < 1 −
@@ -101,7 +102,7 @@ function seededUniform(seed: number): () => number {
  *   operating point fails are reported with their error and count as not stable.
  * Cost: per sample one Newton solve, one linearization, (sampled) one matrix exponential of
  *   size n + m, one eigenvalue problem of size n + r
- *   and, for m = 1, one margin computation (O(n³) + O(n²) per frequency).
+ *   and m margin computations (O(n³) + O(n²) per frequency each).
  * Accuracy: poles as the eigenvalue routine (backward stable); margins as `loopMargins`.
  * Errors: "invalid-argument" (unknown parameter, bad percent or sampling, too many samples,
  *   a sample time that is not a positive finite number),
@@ -170,10 +171,10 @@ export function robustnessSweep(request: RobustnessSweepRequest): RobustnessSwee
   // Nominal solution: warm start for every sample.
   const nominalPoint = solveOperatingPoint(plant, request.operatingPoint);
   const guess = (names: string[], values: number[]): Record<string, number> => Object.fromEntries(names.map((name, i) => [name, values[i]!]));
-  const marginsApply = m === 1;
-  const marginsNote = marginsApply
-    ? `gain and phase margins of the single-input loop broken at the plant input${T === null ? "" : ` (controller sampled at ${T} s, plant through a zero-order hold)`}`
-    : `margins skipped: the loop has ${m} inputs and the margin routine handles single-input loops only`;
+  const sampledNote = T === null ? "" : ` (controller sampled at ${T} s, plant through a zero-order hold)`;
+  const marginsNote = m === 1
+    ? `gain and phase margins of the single-input loop broken at the plant input${sampledNote}`
+    : `loop-at-a-time gain and phase margins at the plant input: each of the ${m} inputs' loops broken in turn with the others closed, the worst channel per sample${sampledNote}; they do not bound simultaneous changes in several channels`;
 
   const samples: RobustnessSample[] = [];
   for (let s = 0; s < offsets.length; s++) {
@@ -203,11 +204,11 @@ export function robustnessSweep(request: RobustnessSweepRequest): RobustnessSwee
       const scale = Math.max(1, ...sample.poles.map((z) => Math.hypot(z.re, z.im)));
       const band = 10 * Number.EPSILON * scale;
       sample.stable = T === null ? sample.poles.every((z) => z.re < -band) : sample.poles.every((z) => Math.hypot(z.re, z.im) < 1 - band);
-      if (marginsApply) {
-        const loop = loopAtInput(seen.A, seen.B, seen.C, seen.D, K, Ki, tracked, T);
+      const loops = loopsAtInput(seen.A, seen.B, seen.C, seen.D, K, Ki, tracked, T);
+      for (const loop of loops) {
         const margins = loopMargins(loop);
-        sample.gainMarginDb = margins.gainMarginDb;
-        sample.phaseMarginDeg = margins.phaseMarginDeg;
+        sample.gainMarginDb = smaller(sample.gainMarginDb, margins.gainMarginDb);
+        sample.phaseMarginDeg = smaller(sample.phaseMarginDeg, margins.phaseMarginDeg);
       }
     } catch (error) {
       if (error instanceof EngineError && error.kind === "cancelled") throw error;
@@ -228,18 +229,46 @@ export function robustnessSweep(request: RobustnessSweepRequest): RobustnessSwee
     samples,
     allStable: samples.every((s) => s.stable),
     failedSamples: samples.filter((s) => s.error !== null).length,
-    worstGainMarginDb: marginsApply ? worst((s) => s.gainMarginDb) : null,
-    worstPhaseMarginDeg: marginsApply ? worst((s) => s.phaseMarginDeg) : null,
+    worstGainMarginDb: worst((s) => s.gainMarginDb),
+    worstPhaseMarginDeg: worst((s) => s.phaseMarginDeg),
     marginsNote,
   };
 }
 
+/** The smaller of two margins, null standing for "none" (infinite or not computed). */
+function smaller(a: number | null, b: number | null): number | null {
+  if (a === null) return b;
+  if (b === null) return a;
+  return Math.min(a, b);
+}
+
 /**
- * L(s) = [K Ki](sI − A_aug)⁻¹B_aug with A_aug = [[A, 0], [C_I, 0]], B_aug = [B; D_I]; sampled
- * (T not null, A and B already the zero-order-hold Φ and Γ): L(z) with A_aug = [[Φ, 0],
+ * The loops broken at each plant input in turn, the other inputs' loops closed: with
+ * K_aug = [K Ki], A_aug = [[A, 0], [C_I, 0]], B_aug = [B; D_I], loop j is
+ * L_j(s) = K_aug,j (sI − A_aug + Σ_{c≠j} B_aug,c K_aug,c)⁻¹ B_aug,j (one loop when m = 1). Sampled
+ * (T not null, A and B already the zero-order-hold Φ and Γ): L_j(z) with A_aug = [[Φ, 0],
  * [T·C_I, I]], B_aug = [Γ; T·D_I].
  */
-function loopAtInput(A: Matrix, B: Matrix, C: Matrix, D: Matrix, K: Matrix, Ki: Matrix, tracked: number[], T: number | null) {
+function loopsAtInput(A: Matrix, B: Matrix, C: Matrix, D: Matrix, K: Matrix, Ki: Matrix, tracked: number[], T: number | null) {
+  const full = augmentedLoop(A, B, C, D, K, Ki, tracked, T);
+  const m = B.columns;
+  if (m === 1) return [full];
+  return Array.from({ length: m }, (_, j) => {
+    const Aj = full.A.clone();
+    for (let c = 0; c < m; c++) {
+      if (c === j) continue;
+      for (let i = 0; i < Aj.rows; i++) {
+        const bic = full.B.get(i, c);
+        if (bic === 0) continue;
+        for (let l = 0; l < Aj.columns; l++) Aj.set(i, l, Aj.get(i, l) - bic * full.C.get(c, l));
+      }
+    }
+    return stateSpaceFromMatrices({ A: Aj, B: full.B.subMatrixColumn([j]), C: full.C.subMatrixRow([j]), sampleTime: T });
+  });
+}
+
+/** The augmented loop at the plant input, all m inputs: (A_aug, B_aug, K_aug) as above. */
+function augmentedLoop(A: Matrix, B: Matrix, C: Matrix, D: Matrix, K: Matrix, Ki: Matrix, tracked: number[], T: number | null) {
   const n = A.rows, m = B.columns, r = tracked.length;
   const Aa = new Matrix(n + r, n + r);
   const Ba = new Matrix(n + r, m);

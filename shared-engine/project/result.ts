@@ -184,7 +184,7 @@ export interface VariantResult {
     samples: number;
     allStable: boolean;
     failedSamples: number;
-    /** Over samples, single-input loops only (null otherwise or infinite everywhere). */
+    /** Over samples, the worst loop margins at the plant input (loop at a time for several inputs; null when infinite everywhere). */
     worstGainMarginDb: number | null;
     worstPhaseMarginDeg: number | null;
     /** The closed-loop poles of every sample, together. */
