@@ -263,9 +263,16 @@ export function loopMargins(L: StateSpace, options: { grid?: number[] } = {}): L
 class LoopEvaluator {
   private readonly re = new Float64Array(1);
   private readonly im = new Float64Array(1);
+  // L(jω) by ω: the crossover search, the three peaks and the bandwidth all walk the same
+  // grid, so each grid point is solved once instead of five times (values are immutable).
+  private readonly memo = new Map<number, { re: number; im: number } | null>();
   constructor(private readonly ev: FrequencyResponseEvaluator) {}
   at(omega: number): { re: number; im: number } | null {
-    return this.ev.evaluateFrequency(omega, this.re, this.im) ? { re: this.re[0]!, im: this.im[0]! } : null;
+    const known = this.memo.get(omega);
+    if (known !== undefined) return known;
+    const value = this.ev.evaluateFrequency(omega, this.re, this.im) ? { re: this.re[0]!, im: this.im[0]! } : null;
+    this.memo.set(omega, value);
+    return value;
   }
   magnitude(omega: number): number {
     const v = this.at(omega);
