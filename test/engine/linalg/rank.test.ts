@@ -41,6 +41,11 @@ describe("numerical rank", () => {
         // (I − R Rᵀ)A ≈ 0: range really spans the columns of A.
         const P = A.clone().sub(d.range.mmul(d.range.transpose()).mmul(A));
         expectAtMost(frobenius(P), 100 * Math.max(A.rows, A.columns) * EPS * frobenius(A), "‖(I − RRᵀ)A‖_F");
+        // The values-only paths (no singular vectors) decide the same rank from the same values.
+        const values = numericalRank(A);
+        expect(values.rank).toBe(r);
+        values.singularValues.forEach((sv, i) => expect(Math.abs(sv - d.singularValues[i]!)).toBeLessThanOrEqual(10 * Math.max(A.rows, A.columns) * EPS * d.singularValues[0]!));
+        if (r === Math.min(A.rows, A.columns)) expect(Math.abs(reciprocalCondition(A) - d.reciprocalCondition)).toBeLessThanOrEqual(1e-12);
       }),
       { seed: 8675309, numRuns: 100 },
     );
