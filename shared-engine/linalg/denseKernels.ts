@@ -5,13 +5,18 @@
  *
  * Why a register tile: a plain i-k-j triple loop in V8 runs near 1 GFlop/s because every
  * update reloads and stores out[i][j]; a 2-row × 4-column tile held in locals reaches about
- * 4–5 GFlop/s for n = 20…200 (measured on the CI machine, Node 20).
+ * 3.7–4.6 GFlop/s for n = 20…200 (Node 20; the lower figure once any ArrayBuffer in the
+ * isolate has been detached, see arrayKernels.ts). Large products (from 48³ multiply-adds, each
+ * operand at most 2^16 entries) are copied into plain number arrays and run through
+ * arrayKernels' 3×3 tile, which reaches 4.3–5.0 GFlop/s including the copies at n = 50…200.
  */
 import { Matrix } from "ml-matrix";
 import { EngineError } from "../errors";
+import { doubleArray, productIntoArray } from "./arrayKernels";
 
 /** out (m×q) = a (m×p) · b (p×q), all row-major. `out` must not alias `a` or `b`. */
 export function multiplyInto<T extends Float64Array>(a: Float64Array, b: Float64Array, m: number, p: number, q: number, out: T): T {
+  if (worthArrays(m, p, q)) return productThroughArrays(a, b, null, m, p, q, out);
   return productKernel(a, b, null, m, p, q, out);
 }
 
@@ -21,7 +26,41 @@ export function multiplyInto<T extends Float64Array>(a: Float64Array, b: Float64
  * `out` may alias `c` but not `a` or `b`.
  */
 export function multiplyAddInto<T extends Float64Array>(a: Float64Array, b: Float64Array, c: Float64Array, m: number, p: number, q: number, out: T): T {
+  if (worthArrays(m, p, q)) return productThroughArrays(a, b, c, m, p, q, out);
   return productKernel(a, b, c, m, p, q, out);
+}
+
+// From this many multiply-adds the copies into number[] pay for themselves (measured: equal
+// at n = 32, +10% at 40, +25% at 64, +30% at 100…200 under `npm run bench`).
+const ARRAY_PATH_FROM = 48 * 48 * 48;
+// Largest operand copied (2^16 entries = 256²): the four copies are cached, so this caps the
+// memory held at 2 MiB; larger products stay on the typed path.
+const ARRAY_PATH_LARGEST = 1 << 16;
+
+function worthArrays(m: number, p: number, q: number): boolean {
+  return m * p * q >= ARRAY_PATH_FROM && m * p <= ARRAY_PATH_LARGEST && p * q <= ARRAY_PATH_LARGEST && m * q <= ARRAY_PATH_LARGEST;
+}
+
+let arrayA = doubleArray(0), arrayB = doubleArray(0), arrayC = doubleArray(0), arrayOut = doubleArray(0);
+
+// The product (plus addend) through cached number[] copies and arrayKernels' 3×3 tile. Each
+// entry is summed in the same order as productKernel, so the result is bit for bit the same.
+function productThroughArrays<T extends Float64Array>(a: Float64Array, b: Float64Array, c: Float64Array | null, m: number, p: number, q: number, out: T): T {
+  if (arrayA.length < m * p) arrayA = doubleArray(m * p);
+  if (arrayB.length < p * q) arrayB = doubleArray(p * q);
+  if (arrayOut.length < m * q) arrayOut = doubleArray(m * q);
+  const ja = arrayA, jb = arrayB, jo = arrayOut;
+  for (let i = 0; i < m * p; i++) ja[i] = a[i]!;
+  for (let i = 0; i < p * q; i++) jb[i] = b[i]!;
+  let jc: number[] | null = null;
+  if (c !== null) {
+    if (arrayC.length < m * q) arrayC = doubleArray(m * q);
+    jc = arrayC;
+    for (let i = 0; i < m * q; i++) jc[i] = c[i]!;
+  }
+  productIntoArray(ja, jb, jc, m, p, q, jo);
+  for (let i = 0; i < m * q; i++) out[i] = jo[i]!;
+  return out;
 }
 
 // The 2×4 register-tiled product behind multiplyInto / multiplyAddInto (c = null: no addend).
@@ -421,6 +460,22 @@ function rowMajorBySlowPath(m: Matrix, out: Float64Array): Float64Array {
   const cols = m.columns;
   for (let i = 0; i < m.rows; i++) for (let j = 0; j < cols; j++) out[i * cols + j] = m.get(i, j);
   return out;
+}
+
+/**
+ * Matrix (rows × cols) whose rows are views into `data` itself (no copy): for results the
+ * caller has just allocated and hands over, saving the copy `matrixOfRowMajor` makes. The
+ * caller must not keep or reuse `data`. Falls back to a copy if ml-matrix ever stores its
+ * rows differently.
+ */
+export function matrixAdoptingRowMajor(data: Float64Array, rows: number, cols: number): Matrix {
+  const m = new Matrix(0, cols) as unknown as MatrixRows;
+  if (!Array.isArray(m.data)) return matrixOfRowMajor(data, rows, cols);
+  const rowViews = new Array<Float64Array>(rows);
+  for (let i = 0; i < rows; i++) rowViews[i] = data.subarray(i * cols, i * cols + cols);
+  m.data = rowViews;
+  m.rows = rows;
+  return m as unknown as Matrix;
 }
 
 /**

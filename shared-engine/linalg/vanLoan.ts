@@ -32,8 +32,8 @@ function requireMatrix(value: unknown, name: string): Matrix {
  *
  * Method: C. F. Van Loan, "Computing integrals involving the matrix exponential", IEEE Trans.
  * Automatic Control 23(3):395–404, 1978, Theorem 1: exp([[A, B], [0, 0]]·T) = [[Φ, Γ], [0, I]].
- * The (n+m)×(n+m) exponential is taken by `expm` (Higham 2005). Γ never needs A⁻¹, so singular A
- * (integrators) is handled exactly.
+ * The (n+m)×(n+m) exponential is taken by `expm` (Al-Mohy & Higham 2009 scaling and squaring).
+ * Γ never needs A⁻¹, so singular A (integrators) is handled exactly.
  *
  * Cost: one expm of order n+m, about 15(n+m)³ flops plus squarings for ‖A‖T large.
  *

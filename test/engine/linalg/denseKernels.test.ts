@@ -1,7 +1,7 @@
 import { describe, it, expect } from "vitest";
 import { Matrix } from "ml-matrix";
 import {
-  matrixOfRowMajor, multiply, multiplyAddInto, multiplyInto, rowMajorOf, solveInPlace, subtractProductInto, transpose,
+  matrixAdoptingRowMajor, matrixOfRowMajor, multiply, multiplyAddInto, multiplyInto, rowMajorOf, solveInPlace, subtractProductInto, transpose,
 } from "../../../shared-engine/linalg/denseKernels";
 import { EngineError } from "../../../shared-engine/errors";
 import { expectAtMost } from "../../helpers/assertions";
@@ -111,6 +111,29 @@ describe("product-plus-addend and Matrix conversions used by the fast paths", ()
       multiplyAddInto(a, b, inPlace, m, p, q, inPlace);
       for (const got of [fresh, aliased, inPlace]) expect(Array.from(got)).toEqual(Array.from(expected));
     }
+  });
+
+  it("large products (number-array path) equal the naive triple loop bit for bit, with and without addend", () => {
+    // Same summation order per entry (k = 0…p−1, then the addend), so equality is exact.
+    for (const [m, p, q] of [[48, 48, 48], [50, 61, 70], [67, 53, 49], [64, 64, 65]] as const) {
+      const a = randomArray(m * p, m + 3 * p), b = randomArray(p * q, q + 5 * p), c = randomArray(m * q, m * q);
+      const expected = naiveProduct(a, b, m, p, q);
+      expect(Array.from(multiply(a, b, m, p, q))).toEqual(Array.from(expected));
+      const withC = Array.from(expected, (v, i) => v + c[i]!);
+      expect(Array.from(multiplyAddInto(a, b, c, m, p, q, new Float64Array(m * q)))).toEqual(withC);
+      const inPlace = c.slice();
+      multiplyAddInto(a, b, inPlace, m, p, q, inPlace);
+      expect(Array.from(inPlace)).toEqual(withC);
+    }
+  });
+
+  it("matrixAdoptingRowMajor wraps the array without copying", () => {
+    const data = Float64Array.from([1, 2, 3, 4, 5, 6]);
+    const m = matrixAdoptingRowMajor(data, 3, 2);
+    expect(m.to2DArray()).toEqual([[1, 2], [3, 4], [5, 6]]);
+    data[5] = 60; // the Matrix reads the adopted storage
+    expect(m.get(2, 1)).toBe(60);
+    expect(m.mmul(Matrix.eye(2)).get(2, 1)).toBe(60);
   });
 
   it("rowMajorOf and matrixOfRowMajor round-trip the entries and share no storage with their arguments", () => {
