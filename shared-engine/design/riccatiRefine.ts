@@ -155,7 +155,8 @@ function isStable(kind: RiccatiKind, poles: Complex[]): boolean {
 
 /**
  * Symmetrises X, refines it by Newton's method when asked (or automatically when the residual
- * is above 100·n·ε), and verifies: K finite, A − BK stable, normalised residual ≤ √ε.
+ * is above 100·n·ε), and verifies: K finite, A − BK stable, normalised residual ≤ √ε. Newton
+ * stops when a step fails to halve the residual, or once the normalised residual is at n·ε.
  */
 export function finishRiccati(
   data: RiccatiData, kind: RiccatiKind, xIn: Float64Array, rcond: number, method: string, options: RiccatiOptions,
@@ -209,7 +210,10 @@ export function finishRiccati(
       x = candidate;
       ev = next;
       refined = true;
-      if (gain < 2 || ev.residualNorm === 0) break;
+      // A normalised residual at n·ε is the rounding level of evaluating Res(X) itself: a further
+      // step could not halve it, so it would be computed only to be discarded (one Lyapunov
+      // solve saved).
+      if (gain < 2 || ev.residualNorm === 0 || ev.normalisedResidual <= n * Number.EPSILON) break;
     }
   }
 

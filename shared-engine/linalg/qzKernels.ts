@@ -1,6 +1,7 @@
 /**
- * Row-major Float64Array kernels shared by the QZ iteration (qz.ts) and the reordering of the
- * generalized real Schur form (qzReorder.ts). Internal to linalg/: nothing here validates input.
+ * Row-major Float64Array kernels shared by the QZ algorithm (qz.ts, qzHessenbergTriangular.ts,
+ * qzIteration.ts) and the reordering of the generalized real Schur form (qzReorder.ts,
+ * qzSwap.ts). Internal to linalg/: nothing here validates input.
  *
  * Conventions. The pencil under transformation is held as S (n×n) and T (n×n), row-major. The
  * orthogonal factors are held TRANSPOSED (QT = Qᵀ, ZT = Zᵀ, row-major) so that both left and
@@ -43,7 +44,14 @@ export function givens(f: number, g: number): void {
   let r = Math.sqrt(f * f + g * g);
   // The plain formula under/overflows only for |f|,|g| outside ~1e±154; fall back to hypot then.
   if (r === 0 || r === Infinity) r = Math.hypot(f, g);
-  rot[0] = f / r; rot[1] = g / r; rot[2] = r;
+  if (r > 1e-290) {
+    // One division instead of two (1/r cannot overflow here).
+    const inv = 1 / r;
+    rot[0] = f * inv; rot[1] = g * inv;
+  } else {
+    rot[0] = f / r; rot[1] = g / r;
+  }
+  rot[2] = r;
 }
 
 /** Rotates rows i and j of M (n columns) on columns [c0, c1). */
@@ -78,11 +86,10 @@ export function house3(alpha: number, x1: number, x2: number): void {
     refl[0] = 0; refl[1] = 0; refl[2] = 0; refl[4] = alpha;
     return;
   }
-  let xnorm = Math.sqrt(x1 * x1 + x2 * x2);
-  // The squares under/overflow only outside ~1e±154; hypot is exact but slower.
-  if (xnorm === 0 || xnorm === Infinity) xnorm = Math.hypot(x1, x2);
-  let norm = Math.sqrt(alpha * alpha + xnorm * xnorm);
-  if (norm === Infinity || norm === 0) norm = Math.hypot(alpha, x1, x2);
+  // One square root of the plain sum of squares: squares that underflow are then negligible
+  // beside the sum, and none overflows. Outside ~1e±150 hypot (exact but slower) is used.
+  let norm = Math.sqrt(alpha * alpha + x1 * x1 + x2 * x2);
+  if (!(norm > 1e-150 && norm < 1e150)) norm = Math.hypot(alpha, x1, x2);
   const beta = alpha >= 0 ? -norm : norm;
   const scal = 1 / (alpha - beta);
   refl[0] = (beta - alpha) / beta;
@@ -222,8 +229,12 @@ function splitRealBlock(w: PencilWork, j: number, rowStart: number, colEnd: numb
   if (T[j1 + 1] < 0) negateRow(w, j + 1, j + 1, colEnd);
 }
 
-/** Frobenius norm of a flat array, scaled against overflow. */
+/** Frobenius norm of a flat array: the plain sum of squares when it is safely in range, scaled otherwise. */
 export function frobeniusNorm(M: Float64Array): number {
+  // Plain sum of squares when it lies safely inside the normal range; the scaled form otherwise.
+  let plain = 0;
+  for (let k = 0; k < M.length; k++) plain += M[k] * M[k];
+  if (plain > 1e-250 && plain < 1e250) return Math.sqrt(plain);
   let scale = 0;
   for (let k = 0; k < M.length; k++) scale = Math.max(scale, Math.abs(M[k]));
   if (scale === 0 || !Number.isFinite(scale)) return scale;
@@ -250,16 +261,17 @@ export type PencilFactors = "none" | "right" | "both";
 
 /**
  * Copies A and E (n×n) into one fresh buffer holding S, T, the requested accumulators
- * initialised to the identity (Qᵀ = Zᵀ = I), plus 3n doubles of scratch. One allocation instead
+ * initialised to the identity (Qᵀ = Zᵀ = I), plus 7n doubles of scratch; `all` views S, T and the
+ * accumulators together (they lie back to back). One allocation instead
  * of six: for n ≤ 20 allocation and garbage collection otherwise cost more than the arithmetic.
  * A and E are Matrices, or row-major Float64Arrays of length n² (then `size` gives n).
  */
 export function loadPencil(
   A: Matrix | Float64Array, E: Matrix | Float64Array, factors: PencilFactors, size = 0,
-): PencilWork & { scratch: Float64Array } {
+): PencilWork & { scratch: Float64Array; all: Float64Array } {
   const n = A instanceof Float64Array ? size : A.rows, nn = n * n;
   const blocks = factors === "both" ? 4 : factors === "right" ? 3 : 2;
-  const buffer = new Float64Array(blocks * nn + 3 * n);
+  const buffer = new Float64Array(blocks * nn + 7 * n);
   const S = buffer.subarray(0, nn), T = buffer.subarray(nn, 2 * nn);
   // Bulk row copies instead of 2n² Matrix.get calls.
   if (A instanceof Float64Array) S.set(A.subarray(0, nn)); else copyRowMajorInto(A, S);
@@ -273,7 +285,7 @@ export function loadPencil(
     QT = buffer.subarray(2 * nn, 3 * nn);
     for (let i = 0; i < n; i++) QT[i * n + i] = 1;
   }
-  return { n, S, T, QT, ZT, scratch: buffer.subarray(blocks * nn) };
+  return { n, S, T, QT, ZT, scratch: buffer.subarray(blocks * nn), all: buffer.subarray(0, blocks * nn) };
 }
 
 /**
@@ -296,6 +308,32 @@ export function matrixFromRowMajor(M: Float64Array, n: number, transpose: boolea
   }
   const rows = new Array<Float64Array>(n);
   for (let i = 0; i < n; i++) rows[i] = own.subarray(i * n, i * n + n);
+  m.data = rows;
+  m.rows = n;
+  return m as unknown as Matrix;
+}
+
+/**
+ * An n×n Matrix whose rows are views of M (row-major, length ≥ n²), transposed in place first
+ * when `transposeInPlace`. No copy: only for a work array allocated for this one call and not
+ * used again by the engine (qz hands its pencil buffer out this way, S, T, Q and Z on disjoint
+ * stretches of one buffer, so that writes to one never reach another). Falls back to a copy if
+ * ml-matrix ever stops keeping rows in `data` (see matrixFromRowMajor).
+ */
+export function matrixViewOfRowMajor(M: Float64Array, n: number, transposeInPlace: boolean): Matrix {
+  if (transposeInPlace) {
+    for (let i = 0; i < n; i++) {
+      for (let j = i + 1; j < n; j++) {
+        const t = M[i * n + j];
+        M[i * n + j] = M[j * n + i];
+        M[j * n + i] = t;
+      }
+    }
+  }
+  const m = new Matrix(0, n) as unknown as { data: unknown; rows: number };
+  if (!Array.isArray(m.data)) return matrixFromRowMajor(M, n, false);
+  const rows = new Array<Float64Array>(n);
+  for (let i = 0; i < n; i++) rows[i] = M.subarray(i * n, i * n + n);
   m.data = rows;
   m.rows = n;
   return m as unknown as Matrix;
