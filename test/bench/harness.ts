@@ -21,9 +21,12 @@ export interface BenchCase {
 export function medianSeconds(fn: () => unknown, repeats: number): number {
   // Warm-up until the JIT has settled: one call is not enough at n ≤ 20, where the first
   // hundreds of calls run in V8's baseline tiers (the reference side, compiled LAPACK behind
-  // Python, needs no such warm-up). At least 3 calls, then up to 100 ms or 2·repeats calls.
-  const warmUntil = performance.now() + 100;
-  for (let i = 0; i < 3 || (i < 2 * repeats && performance.now() < warmUntil); i++) fn();
+  // Python, needs no such warm-up). V8's optimising tier settles after about 300–400 calls of
+  // the small QZ and Riccati cases, so: at least 3 calls, then until 1,000 calls (or 5·repeats,
+  // if more) or 500 ms, whichever comes first.
+  const warmUntil = performance.now() + 500;
+  const warmCalls = Math.max(1000, 5 * repeats);
+  for (let i = 0; i < 3 || (i < warmCalls && performance.now() < warmUntil); i++) fn();
   // The repeats are timed in BLOCKS blocks and the smallest block median is reported, so a
   // burst of load from other processes on the shared machine spoils one block, not the
   // result. reference.py measures the same way.
