@@ -13,39 +13,41 @@ import { requireSquareFinite } from "./validate";
  * upper Hessenberg form in place, zeroing the entries below the subdiagonal exactly. Entries of
  * `a` outside that window are transformed consistently (rows to the right, columns above), so
  * a matrix that is already triangular outside the window (as after balancing with
- * permutation) stays similar to the input. When `q` is given (row-major n×n) it is
- * overwritten by Q = H_ilo·…·H_(ihi−2), the product of the reflectors, so that the input
- * equals Q·H·Qᵀ (its previous content is ignored).
+ * permutation) stays similar to the input. When `qt` is given (row-major n×n) it is
+ * overwritten by Qᵀ, the transpose of Q = H_ilo·…·H_(ihi−2), so that the input equals
+ * Q·H·Qᵀ (its previous content is ignored). The Schur kernels update Q through its transpose
+ * (see francisQRTransposedInPlace), so this is the form they want; `reduceToHessenbergInPlace`
+ * returns Q itself.
  *
  * Method: Householder reflections H_k = I − τ v vᵀ built as in Golub & Van Loan, "Matrix
  * Computations", 4th ed. (2013), Algorithm 7.4.2. The column norm sums squares directly when
  * that sum is safely inside the normal range and falls back to max-abs scaling otherwise, so
  * entries near the underflow or overflow threshold keep full accuracy.
  * Each two-sided step H_k·A·H_k is applied as one rank-2 update (two passes over the
- * affected block instead of four; see the comment in the loop).
- * Q is formed afterwards by backward accumulation (as LAPACK dorghr), which touches only the
- * shrinking trailing block. Cost: 10/3·m³ flops for the window size m, plus 4/3·m³ with `q`.
- * Memory: a module-level workspace of 4n doubles (+ n² for the stored reflectors when `q` is
- * given), reused across calls.
+ * affected block instead of four; see the comment in the loop), four rows at a time.
+ * The reflectors are kept below the subdiagonal (as LAPACK dgehrd does) and Qᵀ is formed
+ * afterwards by backward accumulation (as LAPACK dorghr): Qᵀ ← Qᵀ·H_k for k from the last
+ * reflector down, which touches only the shrinking trailing block, one row of Qᵀ at a time
+ * and two reflectors per pass (`accumulateTransposedQ`).
+ * Cost: 10/3·m³ flops for the window size m, plus 4/3·m³ with `qt`. Memory: module-level
+ * workspaces of 4n doubles, reused across calls.
  */
-export function reduceToHessenbergInPlace(a: Float64Array, n: number, ilo: number, ihi: number, q: Float64Array | null): void {
-  // One reused workspace instead of five typed arrays per call: at n ≤ 20 their (off-heap)
-  // allocation and collection cost more than the reduction itself.
-  const work = workspace(4 * n + (q ? n * n : 0));
-  const v = work.subarray(0, n);
-  const w = work.subarray(n, 2 * n);
-  const y = work.subarray(2 * n, 3 * n);
-  const taus = work.subarray(3 * n, 4 * n);
-  taus.fill(0); // a skipped step (column already zero) must read as H_k = I below
-  // reflectors for the backward accumulation of Q: row k holds v_k (entries k+1..ihi)
-  const reflectors = q ? work.subarray(4 * n, 4 * n + n * n) : null;
+export function reduceToHessenbergTransposedInPlace(a: Float64Array, n: number, ilo: number, ihi: number, qt: Float64Array | null): void {
+  if (scratchV.length < n) {
+    scratchV = new Float64Array(n);
+    scratchW = new Float64Array(n);
+    scratchY = new Float64Array(n);
+    scratchTau = new Float64Array(n);
+  }
+  const v = scratchV, w = scratchW, y = scratchY, taus = scratchTau;
   for (let k = ilo; k < ihi - 1; k++) {
+    taus[k] = 0; // a skipped step (column already zero) must read as H_k = I below
     // Householder vector for x = a[k+1..ihi][k] (Golub & Van Loan Alg. 5.1.1).
     const r0 = k + 1;
     const alpha = a[r0 * n + k];
     let below = 0;
-    for (let i = r0 + 1; i <= ihi; i++) {
-      const x = a[i * n + k];
+    for (let i = r0 + 1, p = (r0 + 1) * n + k; i <= ihi; i++, p += n) {
+      const x = a[p];
       below += x * x;
     }
     let norm: number;
@@ -71,11 +73,13 @@ export function reduceToHessenbergInPlace(a: Float64Array, n: number, ilo: numbe
     const tau = (beta - alpha) / beta;
     const inv = 1 / (alpha - beta);
     v[r0] = 1;
-    for (let i = r0 + 1; i <= ihi; i++) {
-      v[i] = a[i * n + k] * inv;
-      a[i * n + k] = 0;
+    for (let i = r0 + 1, p = (r0 + 1) * n + k; i <= ihi; i++, p += n) {
+      const x = a[p] * inv;
+      v[i] = x;
+      a[p] = qt ? x : 0; // the reflector is stored where the zeros go (for Qᵀ below)
     }
     a[r0 * n + k] = beta;
+    taus[k] = tau;
 
     // Two-sided update H_k A H_k in two passes instead of four (left product, left update,
     // right product, right update). With y = A v (rows 0..ihi) and z = Aᵀ v (columns k+1..n−1),
@@ -83,35 +87,81 @@ export function reduceToHessenbergInPlace(a: Float64Array, n: number, ilo: numbe
     //   (I − τvvᵀ) A (I − τvvᵀ) = A − v (τz)ᵀ − (τy − τ²γ v) vᵀ,
     // the expansion of the product in Golub & Van Loan Alg. 7.4.2 (the rank-2 form of the
     // symmetric case, §8.3.1, without its symmetry). v is zero outside r0..ihi.
-    for (let j = k + 1; j < n; j++) w[j] = 0;
-    for (let i = 0; i < r0; i++) {
+    for (let j = r0; j < n; j++) w[j] = 0;
+    let i = 0;
+    for (; i + 3 < r0; i += 4) {
+      // four rows per pass: four independent sums instead of one latency-bound chain
+      const p0 = i * n, p1 = p0 + n, p2 = p1 + n, p3 = p2 + n;
+      let s0 = 0, s1 = 0, s2 = 0, s3 = 0;
+      for (let j = r0; j <= ihi; j++) {
+        const vj = v[j];
+        s0 += a[p0 + j] * vj;
+        s1 += a[p1 + j] * vj;
+        s2 += a[p2 + j] * vj;
+        s3 += a[p3 + j] * vj;
+      }
+      y[i] = s0;
+      y[i + 1] = s1;
+      y[i + 2] = s2;
+      y[i + 3] = s3;
+    }
+    if (i + 1 < r0) {
+      const p0 = i * n, p1 = p0 + n;
+      let s0 = 0, s1 = 0;
+      for (let j = r0; j <= ihi; j++) {
+        const vj = v[j];
+        s0 += a[p0 + j] * vj;
+        s1 += a[p1 + j] * vj;
+      }
+      y[i] = s0;
+      y[i + 1] = s1;
+      i += 2;
+    }
+    if (i < r0) {
       const row = i * n;
       let sum = 0;
       for (let j = r0; j <= ihi; j++) sum += a[row + j] * v[j];
       y[i] = sum;
     }
     let gamma = 0;
-    let i = r0;
-    for (; i + 1 <= ihi; i += 2) {
-      // two rows per pass halve the loads and stores of z (held in w)
-      const vi = v[i];
-      const vi1 = v[i + 1];
-      const row = i * n;
-      const row1 = row + n;
-      let sum = 0;
-      let sum1 = 0;
+    i = r0;
+    for (; i + 3 <= ihi; i += 4) {
+      // four rows per pass: one load and store of z (held in w) serves four rows
+      const v0 = v[i], v1 = v[i + 1], v2 = v[i + 2], v3 = v[i + 3];
+      const p0 = i * n, p1 = p0 + n, p2 = p1 + n, p3 = p2 + n;
+      let s0 = 0, s1 = 0, s2 = 0, s3 = 0;
       for (let j = r0; j <= ihi; j++) {
-        const x = a[row + j];
-        const x1 = a[row1 + j];
+        const x0 = a[p0 + j], x1 = a[p1 + j], x2 = a[p2 + j], x3 = a[p3 + j];
         const vj = v[j];
-        sum += x * vj;
-        sum1 += x1 * vj;
-        w[j] += vi * x + vi1 * x1;
+        s0 += x0 * vj;
+        s1 += x1 * vj;
+        s2 += x2 * vj;
+        s3 += x3 * vj;
+        w[j] += v0 * x0 + v1 * x1 + v2 * x2 + v3 * x3;
       }
-      for (let j = ihi + 1; j < n; j++) w[j] += vi * a[row + j] + vi1 * a[row1 + j];
-      y[i] = sum;
-      y[i + 1] = sum1;
-      gamma += vi * sum + vi1 * sum1;
+      for (let j = ihi + 1; j < n; j++) w[j] += v0 * a[p0 + j] + v1 * a[p1 + j] + v2 * a[p2 + j] + v3 * a[p3 + j];
+      y[i] = s0;
+      y[i + 1] = s1;
+      y[i + 2] = s2;
+      y[i + 3] = s3;
+      gamma += v0 * s0 + v1 * s1 + v2 * s2 + v3 * s3;
+    }
+    if (i + 1 <= ihi) {
+      const v0 = v[i], v1 = v[i + 1];
+      const p0 = i * n, p1 = p0 + n;
+      let s0 = 0, s1 = 0;
+      for (let j = r0; j <= ihi; j++) {
+        const x0 = a[p0 + j], x1 = a[p1 + j];
+        const vj = v[j];
+        s0 += x0 * vj;
+        s1 += x1 * vj;
+        w[j] += v0 * x0 + v1 * x1;
+      }
+      for (let j = ihi + 1; j < n; j++) w[j] += v0 * a[p0 + j] + v1 * a[p1 + j];
+      y[i] = s0;
+      y[i + 1] = s1;
+      gamma += v0 * s0 + v1 * s1;
+      i += 2;
     }
     if (i <= ihi) {
       const vi = v[i];
@@ -126,34 +176,77 @@ export function reduceToHessenbergInPlace(a: Float64Array, n: number, ilo: numbe
       y[i] = sum;
       gamma += vi * sum;
     }
-    for (let j = k + 1; j < n; j++) w[j] *= tau;
+    for (let j = r0; j < n; j++) w[j] *= tau;
     const tau2gamma = tau * tau * gamma;
-    for (let i2 = 0; i2 < r0; i2++) {
+    let i2 = 0;
+    for (; i2 + 3 < r0; i2 += 4) {
+      const f0 = tau * y[i2], f1 = tau * y[i2 + 1], f2 = tau * y[i2 + 2], f3 = tau * y[i2 + 3];
+      const p0 = i2 * n, p1 = p0 + n, p2 = p1 + n, p3 = p2 + n;
+      for (let j = r0; j <= ihi; j++) {
+        const vj = v[j];
+        a[p0 + j] -= f0 * vj;
+        a[p1 + j] -= f1 * vj;
+        a[p2 + j] -= f2 * vj;
+        a[p3 + j] -= f3 * vj;
+      }
+    }
+    if (i2 + 1 < r0) {
+      const f0 = tau * y[i2], f1 = tau * y[i2 + 1];
+      const p0 = i2 * n, p1 = p0 + n;
+      for (let j = r0; j <= ihi; j++) {
+        const vj = v[j];
+        a[p0 + j] -= f0 * vj;
+        a[p1 + j] -= f1 * vj;
+      }
+      i2 += 2;
+    }
+    if (i2 < r0) {
       const f = tau * y[i2];
-      if (f === 0) continue;
       const row = i2 * n;
       for (let j = r0; j <= ihi; j++) a[row + j] -= f * v[j];
     }
-    let i2 = r0;
-    for (; i2 + 1 <= ihi; i2 += 2) {
-      // two rows per pass share the loads of w and v
-      const vi = v[i2];
-      const vi1 = v[i2 + 1];
-      const f = tau * y[i2] - tau2gamma * vi;
-      const f1 = tau * y[i2 + 1] - tau2gamma * vi1;
-      const row = i2 * n;
-      const row1 = row + n;
+    i2 = r0;
+    for (; i2 + 3 <= ihi; i2 += 4) {
+      // four rows per pass share the loads of w and v
+      const v0 = v[i2], v1 = v[i2 + 1], v2 = v[i2 + 2], v3 = v[i2 + 3];
+      const f0 = tau * y[i2] - tau2gamma * v0;
+      const f1 = tau * y[i2 + 1] - tau2gamma * v1;
+      const f2 = tau * y[i2 + 2] - tau2gamma * v2;
+      const f3 = tau * y[i2 + 3] - tau2gamma * v3;
+      const p0 = i2 * n, p1 = p0 + n, p2 = p1 + n, p3 = p2 + n;
       for (let j = r0; j <= ihi; j++) {
         const wj = w[j];
         const vj = v[j];
-        a[row + j] -= vi * wj + f * vj;
-        a[row1 + j] -= vi1 * wj + f1 * vj;
+        a[p0 + j] -= v0 * wj + f0 * vj;
+        a[p1 + j] -= v1 * wj + f1 * vj;
+        a[p2 + j] -= v2 * wj + f2 * vj;
+        a[p3 + j] -= v3 * wj + f3 * vj;
       }
       for (let j = ihi + 1; j < n; j++) {
         const wj = w[j];
-        a[row + j] -= vi * wj;
-        a[row1 + j] -= vi1 * wj;
+        a[p0 + j] -= v0 * wj;
+        a[p1 + j] -= v1 * wj;
+        a[p2 + j] -= v2 * wj;
+        a[p3 + j] -= v3 * wj;
       }
+    }
+    if (i2 + 1 <= ihi) {
+      const v0 = v[i2], v1 = v[i2 + 1];
+      const f0 = tau * y[i2] - tau2gamma * v0;
+      const f1 = tau * y[i2 + 1] - tau2gamma * v1;
+      const p0 = i2 * n, p1 = p0 + n;
+      for (let j = r0; j <= ihi; j++) {
+        const wj = w[j];
+        const vj = v[j];
+        a[p0 + j] -= v0 * wj + f0 * vj;
+        a[p1 + j] -= v1 * wj + f1 * vj;
+      }
+      for (let j = ihi + 1; j < n; j++) {
+        const wj = w[j];
+        a[p0 + j] -= v0 * wj;
+        a[p1 + j] -= v1 * wj;
+      }
+      i2 += 2;
     }
     if (i2 <= ihi) {
       const vi = v[i2];
@@ -162,60 +255,124 @@ export function reduceToHessenbergInPlace(a: Float64Array, n: number, ilo: numbe
       for (let j = r0; j <= ihi; j++) a[row + j] -= vi * w[j] + f * v[j];
       for (let j = ihi + 1; j < n; j++) a[row + j] -= vi * w[j];
     }
-    if (reflectors) {
-      taus[k] = tau;
-      for (let j = r0; j <= ihi; j++) reflectors[k * n + j] = v[j];
+  }
+  if (!qt) return;
+  accumulateTransposedQ(a, n, ilo, ihi, qt, taus, y, w);
+}
+
+/**
+ * Qᵀ = H_last·…·H_ilo from the reflectors stored below the subdiagonal of `a` (restoring the
+ * zeros there), formed from the left end: Qᵀ ← Qᵀ·H_k changes columns k..ihi of rows k..ihi
+ * only (the rest of Qᵀ is still the identity), each row on its own. Two reflectors at a time
+ * (the compact WY form with two columns, Schreiber & Van Loan 1989, cited from memory:
+ * row ← row − s₁ v_kᵀ − s₂ v_(k−1)ᵀ with s₁ = τ_k row·v_k and
+ * s₂ = τ_(k−1)(row·v_(k−1) − s₁ v_k·v_(k−1))), so each row is read once and written once per
+ * pair; `vA`, `vB` are scratch vectors of length n.
+ */
+function accumulateTransposedQ(a: Float64Array, n: number, ilo: number, ihi: number, qt: Float64Array, taus: Float64Array, vA: Float64Array, vB: Float64Array): void {
+  qt.fill(0, 0, n * n);
+  for (let i = 0; i < n; i++) qt[i * n + i] = 1;
+  let k = ihi - 2;
+  for (; k - 1 >= ilo; k -= 2) {
+    // H_k (vA, from row k+1) then H_(k−1) (vB, from row k)
+    const tA = taus[k], tB = taus[k - 1];
+    vA[k + 1] = 1;
+    vB[k] = 1;
+    vB[k + 1] = a[(k + 1) * n + k - 1];
+    a[(k + 1) * n + k - 1] = 0;
+    let c = vB[k + 1]; // v_k·v_(k−1) over rows k+1..ihi
+    for (let i = k + 2, p = (k + 2) * n + k; i <= ihi; i++, p += n) {
+      const x = a[p], z = a[p - 1];
+      vA[i] = x;
+      vB[i] = z;
+      a[p] = 0;
+      a[p - 1] = 0;
+      c += x * z;
+    }
+    // row k is e_k before the pair: H_k leaves it, H_(k−1) makes it e_k − τ_(k−1)·v_(k−1)
+    const rk = k * n;
+    for (let i = k; i <= ihi; i++) qt[rk + i] = 0 - tB * vB[i]; // (0 − x, not −x: never −0)
+    qt[rk + k] = 1 - tB;
+    // rows k+1..ihi (zero in column k so far), four at a time
+    const r0 = k + 1;
+    let j = r0;
+    for (; j + 3 <= ihi; j += 4) {
+      const p0 = j * n, p1 = p0 + n, p2 = p1 + n, p3 = p2 + n;
+      let a0 = 0, a1 = 0, a2 = 0, a3 = 0, b0 = 0, b1 = 0, b2 = 0, b3 = 0;
+      for (let i = r0; i <= ihi; i++) {
+        const x0 = qt[p0 + i], x1 = qt[p1 + i], x2 = qt[p2 + i], x3 = qt[p3 + i];
+        const va = vA[i], vb = vB[i];
+        a0 += x0 * va; a1 += x1 * va; a2 += x2 * va; a3 += x3 * va;
+        b0 += x0 * vb; b1 += x1 * vb; b2 += x2 * vb; b3 += x3 * vb;
+      }
+      a0 *= tA; a1 *= tA; a2 *= tA; a3 *= tA;
+      b0 = tB * (b0 - a0 * c); b1 = tB * (b1 - a1 * c); b2 = tB * (b2 - a2 * c); b3 = tB * (b3 - a3 * c);
+      for (let i = r0; i <= ihi; i++) {
+        const va = vA[i], vb = vB[i];
+        qt[p0 + i] -= a0 * va + b0 * vb;
+        qt[p1 + i] -= a1 * va + b1 * vb;
+        qt[p2 + i] -= a2 * va + b2 * vb;
+        qt[p3 + i] -= a3 * va + b3 * vb;
+      }
+      qt[p0 + k] = 0 - b0;
+      qt[p1 + k] = 0 - b1;
+      qt[p2 + k] = 0 - b2;
+      qt[p3 + k] = 0 - b3;
+    }
+    for (; j <= ihi; j++) {
+      const p0 = j * n;
+      let a0 = 0, b0 = 0;
+      for (let i = r0; i <= ihi; i++) {
+        const x0 = qt[p0 + i];
+        a0 += x0 * vA[i];
+        b0 += x0 * vB[i];
+      }
+      a0 *= tA;
+      b0 = tB * (b0 - a0 * c);
+      for (let i = r0; i <= ihi; i++) qt[p0 + i] -= a0 * vA[i] + b0 * vB[i];
+      qt[p0 + k] = 0 - b0;
     }
   }
-  if (!q || !reflectors) return;
-  // Q = H_ilo·…·H_last formed from the right end: Q ← H_k·Q acts on rows/columns k+1..ihi only
-  q.fill(0);
-  for (let i = 0; i < n; i++) q[i * n + i] = 1;
-  for (let k = ihi - 2; k >= ilo; k--) {
+  if (k === ilo) {
+    // one reflector left: Qᵀ ← Qᵀ·H_k on rows k+1..ihi (row k+1 is e_(k+1) so far)
     const tau = taus[k];
-    if (tau === 0) continue;
     const r0 = k + 1;
-    const vk = k * n;
-    for (let j = r0; j <= ihi; j++) w[j] = 0;
-    let i = r0;
-    for (; i + 1 <= ihi; i += 2) {
-      // two rows per pass halve the loads and stores of w
-      const vi = reflectors[vk + i];
-      const vi1 = reflectors[vk + i + 1];
-      const row = i * n;
-      const row1 = row + n;
-      for (let j = r0; j <= ihi; j++) w[j] += vi * q[row + j] + vi1 * q[row1 + j];
+    vA[r0] = 1;
+    for (let i = r0 + 1, p = (r0 + 1) * n + k; i <= ihi; i++, p += n) {
+      vA[i] = a[p];
+      a[p] = 0;
     }
-    if (i <= ihi) {
-      const vi = reflectors[vk + i];
-      const row = i * n;
-      for (let j = r0; j <= ihi; j++) w[j] += vi * q[row + j];
-    }
-    for (i = r0; i + 1 <= ihi; i += 2) {
-      const f = tau * reflectors[vk + i];
-      const f1 = tau * reflectors[vk + i + 1];
-      const row = i * n;
-      const row1 = row + n;
-      for (let j = r0; j <= ihi; j++) {
-        const wj = w[j];
-        q[row + j] -= f * wj;
-        q[row1 + j] -= f1 * wj;
-      }
-    }
-    if (i <= ihi) {
-      const f = tau * reflectors[vk + i];
-      const row = i * n;
-      for (let j = r0; j <= ihi; j++) q[row + j] -= f * w[j];
+    for (let j = r0; j <= ihi; j++) {
+      const p0 = j * n;
+      let s0 = 0;
+      for (let i = r0; i <= ihi; i++) s0 += qt[p0 + i] * vA[i];
+      s0 *= tau;
+      for (let i = r0; i <= ihi; i++) qt[p0 + i] -= s0 * vA[i];
     }
   }
 }
 
-// Workspace shared by every call of the (synchronous, non-re-entrant) kernel above; grown on
-// demand, never handed out.
-let sharedWorkspace = new Float64Array(0);
-function workspace(size: number): Float64Array {
-  if (sharedWorkspace.length < size) sharedWorkspace = new Float64Array(Math.max(size, 2 * sharedWorkspace.length));
-  return sharedWorkspace;
+// Workspaces of the (synchronous, non-re-entrant) kernel above: grown on demand, never handed
+// out. At n ≤ 20 allocating them per call costs more than the reduction itself.
+let scratchV = new Float64Array(0);
+let scratchW = new Float64Array(0);
+let scratchY = new Float64Array(0);
+let scratchTau = new Float64Array(0);
+let scratchTransposed = new Float64Array(0);
+
+/**
+ * Kernel: as `reduceToHessenbergTransposedInPlace`, but `q` (when given) is overwritten by Q
+ * itself (row-major), so that the input equals Q·H·Qᵀ.
+ */
+export function reduceToHessenbergInPlace(a: Float64Array, n: number, ilo: number, ihi: number, q: Float64Array | null): void {
+  if (!q) {
+    reduceToHessenbergTransposedInPlace(a, n, ilo, ihi, null);
+    return;
+  }
+  if (scratchTransposed.length < n * n) scratchTransposed = new Float64Array(n * n);
+  const qt = scratchTransposed;
+  reduceToHessenbergTransposedInPlace(a, n, ilo, ihi, qt);
+  for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) q[j * n + i] = qt[i * n + j];
 }
 
 /** Row-major n×n identity. */
@@ -233,8 +390,10 @@ export function identityFloat64(n: number): Float64Array {
  *
  * Method: n − 2 Householder reflections applied from both sides (Golub & Van Loan, "Matrix
  * Computations", 4th ed., Johns Hopkins 2013, §7.4.3, Algorithm 7.4.2); Q accumulated
- * backward from the stored reflectors (G&VL §5.1.6). No balancing is done, so the identity
- * holds for A itself.
+ * backward from the stored reflectors (G&VL §5.1.6), two at a time in the two-column compact
+ * WY form (Schreiber & Van Loan, "A storage-efficient WY representation for products of
+ * Householder transformations", SIAM J. Sci. Stat. Comput. 10(1), 1989; cited from memory).
+ * No balancing is done, so the identity holds for A itself.
  *
  * Cost: 10/3·n³ flops for H and 4/3·n³ more for Q; O(n²) memory (row-major copies).
  *

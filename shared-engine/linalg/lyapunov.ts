@@ -3,24 +3,36 @@
  */
 import { Matrix } from "ml-matrix";
 import { EngineError } from "../errors";
-import { allFinite, frobeniusRowMajor, multiply, transpose, matrixOfRowMajor, rowMajorOf } from "./denseKernels";
-import { defaultSchurIterationLimit, realSchurRowMajor } from "./schur";
+import { allFinite, frobeniusRowMajor, multiply, multiplyInto, transpose, matrixOfRowMajor } from "./denseKernels";
+import { defaultSchurIterationLimit, finiteRowMajorOf, realSchurInto, realSchurRowMajor } from "./schur";
 import { solveQuasiTriangularInPlace, type QuasiTriangularEquation } from "./sylvester";
-import { requireFinite, requireSquareFinite, shapeOf } from "./validate";
+import { multiplyUpperInto, solveSymmetricLyapunovTriangularInPlace } from "./sylvesterSymmetric";
+import { requireSquare, shapeOf } from "./validate";
 
-function prepare(A: unknown, Q: unknown): { A: Matrix; Q: Matrix; n: number } {
+/** Checks A and Q and returns their row-major copies in workspaces (errors in the order A, then Q). */
+function prepare(A: unknown, Q: unknown): { A: Matrix; Q: Matrix; n: number; a: Float64Array; q: Float64Array } {
   if (!(A instanceof Matrix)) throw new EngineError("invalid-argument", "A must be a Matrix", { argument: "A" });
   if (!(Q instanceof Matrix)) throw new EngineError("invalid-argument", "Q must be a Matrix", { argument: "Q" });
-  requireSquareFinite(A, "A");
+  requireSquare(A, "A");
   const n = A.rows;
+  if (inputA.length < n * n) {
+    inputA = new Float64Array(n * n);
+    inputQ = new Float64Array(n * n);
+  }
+  const a = finiteRowMajorOf(A, "A", inputA);
   if (Q.rows !== n || Q.columns !== n) {
     throw new EngineError("shape-mismatch", `Q must have the same shape as A (A is ${shapeOf(A)}, Q is ${shapeOf(Q)})`, {
       arguments: ["A", "Q"],
     });
   }
-  requireFinite(Q, "Q");
-  return { A, Q, n };
+  const q = finiteRowMajorOf(Q, "Q", inputQ);
+  return { A, Q, n, a, q };
 }
+
+// Row-major copies of A and Q (workspaces: the solvers are synchronous and not re-entrant, and
+// read them only before returning).
+let inputA = new Float64Array(0);
+let inputQ = new Float64Array(0);
 
 /**
  * Shared body. With A = U S Uᵀ and Y = UᵀXU the equation becomes S Y + Y Sᵀ = F or
@@ -28,10 +40,9 @@ function prepare(A: unknown, Q: unknown): { A: Matrix; Q: Matrix; n: number } {
  * P Sᵀ P is upper quasi-triangular and Z = Y P solves S Z + Z (P Sᵀ P) = F P (resp. the Stein
  * form), so both reuse the Bartels–Stewart kernel with a single Schur decomposition.
  */
-function solveLyapunovKind(kind: QuasiTriangularEquation, a: Float64Array, Q: Matrix, n: number, threshold: number, equation: string): Matrix {
+function solveLyapunovKind(kind: QuasiTriangularEquation, a: Float64Array, q: Float64Array, n: number, threshold: number, equation: string): Matrix {
   // Row-major Schur kernel: same checks as realSchur, without the Matrix round trips.
   const { t: s, q: u } = realSchurRowMajor(a, n, defaultSchurIterationLimit(n));
-  const q = rowMajorOf(Q);
   const f = multiply(multiply(transpose(u, n, n), q, n, n, n), u, n, n, n);
   // F P (columns reversed), negated: the kernel solves "= F", our equations have "+ Q = 0".
   const fp = new Float64Array(n * n);
@@ -64,12 +75,16 @@ function solveLyapunovKind(kind: QuasiTriangularEquation, a: Float64Array, Q: Ma
  * Hurwitz). Q need not be symmetric; when it is (exactly), X is returned exactly symmetric.
  *
  * Method: Bartels & Stewart, "Solution of the matrix equation AX + XB = C", Comm. ACM 15(9),
- * 1972, with B = Aᵀ sharing A's real Schur form (one Francis QR run, `realSchur`); Sᵀ is made
- * upper quasi-triangular by the reversal permutation so the same block back substitution
- * applies.
+ * 1972, with B = Aᵀ sharing A's real Schur form A = U S Uᵀ (one Francis QR run, `realSchur`).
+ * For exactly symmetric Q the transformed equation S Y + Y Sᵀ = −UᵀQU has a symmetric
+ * solution, and only the blocks on and above the diagonal are solved, the others being their
+ * transposes (`solveSymmetricLyapunovTriangularInPlace`; the same block back substitution,
+ * restricted to one triangle); UᵀQU and X = U Y Uᵀ are formed as upper triangles. Otherwise Sᵀ
+ * is made upper quasi-triangular by the reversal permutation so the general kernel applies.
  *
- * Cost: one Schur decomposition (≈ 25n³ flops), 4 n×n products (8n³) and the quasi-triangular
- * solve (≈ 2n³). Memory O(n²).
+ * Cost: one Schur decomposition (≈ 25n³ flops), then for symmetric Q 2 full and 2 half n×n
+ * products (6n³) and the one-triangle solve (≈ n³); for general Q 4 products (8n³) and the
+ * full solve (≈ 2n³). Memory O(n²).
  *
  * Accuracy: relative residual ‖AX + XAᵀ + Q‖_F / (2‖A‖_F‖X‖_F + ‖Q‖_F) of order n·ε; forward error
  * ≲ residual·‖A‖_F / sep(A, −Aᵀ), with sep ≤ min|λᵢ + λⱼ| (for Hurwitz A: 2·min|Re λ|).
@@ -82,10 +97,77 @@ function solveLyapunovKind(kind: QuasiTriangularEquation, a: Float64Array, Q: Ma
  * Example: A = [[−1]], Q = [[2]] gives X = [[1]]; check |A X + X Aᵀ + Q| < 1e-15.
  */
 export function solveContinuousLyapunov(A: Matrix, Q: Matrix): Matrix {
-  const p = prepare(A, Q);
-  const a = rowMajorOf(p.A);
-  const threshold = 20 * p.n * Number.EPSILON * frobeniusRowMajor(a);
-  return solveLyapunovKind("sylvester", a, p.Q, p.n, threshold, "A X + X Aᵀ + Q = 0");
+  const { n, a, q } = prepare(A, Q);
+  const threshold = 20 * n * Number.EPSILON * frobeniusOf(a, n * n);
+  if (isSymmetric(q, n)) return solveSymmetricContinuous(a, q, n, threshold);
+  return solveLyapunovKind("sylvester", a, q, n, threshold, "A X + X Aᵀ + Q = 0");
+}
+
+/**
+ * ‖a[0..len)‖₂: four running sums of squares when that is safe (the sum well inside the normal
+ * range), else the scaled sum of the reference BLAS dnrm2 (`frobeniusRowMajor`).
+ */
+function frobeniusOf(a: Float64Array, len: number): number {
+  let s0 = 0, s1 = 0, s2 = 0, s3 = 0;
+  const len4 = len - (len % 4);
+  for (let i = 0; i < len4; i += 4) {
+    s0 += a[i] * a[i];
+    s1 += a[i + 1] * a[i + 1];
+    s2 += a[i + 2] * a[i + 2];
+    s3 += a[i + 3] * a[i + 3];
+  }
+  for (let i = len4; i < len; i++) s0 += a[i] * a[i];
+  const sum = s0 + s1 + s2 + s3;
+  if (sum > 1e-280 && sum < 1e280) return Math.sqrt(sum);
+  return frobeniusRowMajor(a.subarray(0, len));
+}
+
+function isSymmetric(q: Float64Array, n: number): boolean {
+  for (let i = 0; i < n; i++) for (let j = i + 1; j < n; j++) if (q[i * n + j] !== q[j * n + i]) return false;
+  return true;
+}
+
+// Workspaces of solveSymmetricContinuous (synchronous, not re-entrant; results are copied out).
+let lyapS = new Float64Array(0);
+let lyapUt = new Float64Array(0);
+let lyapU = new Float64Array(0);
+let lyapW = new Float64Array(0);
+let lyapY = new Float64Array(0);
+let lyapX = new Float64Array(0);
+
+/**
+ * Continuous equation with exactly symmetric Q: A = U S Uᵀ, then S Y + Y Sᵀ = C with
+ * C = UᵀQU, solved for one triangle of the symmetric Y (`solveSymmetricLyapunovTriangularInPlace`),
+ * and X = −U Y Uᵀ, formed as its upper triangle and mirrored (exactly symmetric).
+ */
+function solveSymmetricContinuous(a: Float64Array, q: Float64Array, n: number, threshold: number): Matrix {
+  const nn = n * n;
+  if (lyapS.length < nn) {
+    lyapS = new Float64Array(nn);
+    lyapUt = new Float64Array(nn);
+    lyapU = new Float64Array(nn);
+    lyapW = new Float64Array(nn);
+    lyapY = new Float64Array(nn);
+    lyapX = new Float64Array(nn);
+  }
+  const s = lyapS, ut = lyapUt, u = lyapU, w = lyapW, y = lyapY;
+  realSchurInto(a, n, defaultSchurIterationLimit(n), s, ut); // s = S, ut = Uᵀ
+  for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) u[j * n + i] = ut[i * n + j];
+  multiplyInto(q, u, n, n, n, w); // Q U
+  multiplyUpperInto(ut, w, n, y); // C = Uᵀ Q U: the kernel reads its upper triangle only
+  solveSymmetricLyapunovTriangularInPlace(s, n, y, threshold, { equation: "A X + X Aᵀ + Q = 0", first: "A", second: "A" });
+  multiplyInto(y, ut, n, n, n, w); // Y Uᵀ
+  const x = lyapX;
+  multiplyUpperInto(u, w, n, x); // U Y Uᵀ = −X, upper triangle
+  for (let i = 0; i < n; i++) {
+    for (let j = i; j < n; j++) {
+      const value = -x[i * n + j];
+      x[i * n + j] = value;
+      x[j * n + i] = value;
+    }
+  }
+  if (!allFinite(x.subarray(0, nn))) throw new EngineError("non-finite", "the solution X of A X + X Aᵀ + Q = 0 overflows (the equation is nearly singular)", {});
+  return matrixOfRowMajor(x, n, n); // copies: the workspace is never handed out
 }
 
 /**
@@ -114,9 +196,8 @@ export function solveContinuousLyapunov(A: Matrix, Q: Matrix): Matrix {
  * Example: A = [[0.5]], Q = [[3]] gives X = [[4]]; check |A X Aᵀ − X + Q| < 1e-15.
  */
 export function solveDiscreteLyapunov(A: Matrix, Q: Matrix): Matrix {
-  const p = prepare(A, Q);
-  const a = rowMajorOf(p.A);
-  const normA = frobeniusRowMajor(a);
-  const threshold = 20 * p.n * Number.EPSILON * (1 + normA * normA);
-  return solveLyapunovKind("stein", a, p.Q, p.n, threshold, "A X Aᵀ − X + Q = 0");
+  const { n, a, q } = prepare(A, Q);
+  const normA = frobeniusOf(a, n * n);
+  const threshold = 20 * n * Number.EPSILON * (1 + normA * normA);
+  return solveLyapunovKind("stein", a, q, n, threshold, "A X Aᵀ − X + Q = 0");
 }

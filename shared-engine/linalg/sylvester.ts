@@ -5,20 +5,12 @@
  */
 import { Matrix } from "ml-matrix";
 import { EngineError } from "../errors";
-import type { Complex } from "./complex";
 import { allFinite, frobeniusRowMajor, multiply, transpose, matrixOfRowMajor, rowMajorOf } from "./denseKernels";
 import { defaultSchurIterationLimit, realSchurRowMajor } from "./schur";
+import { solveByCompletePivoting, throwSingular, type QuasiTriangularEquation, type SingularLabels } from "./sylvesterBlocks";
 import { requireFinite, requireSquareFinite, shapeOf } from "./validate";
 
-/** Which quasi-triangular equation the kernel solves. */
-export type QuasiTriangularEquation = "sylvester" | "stein";
-
-/** Labels used in the "singular" error message of the kernel. */
-export interface SingularLabels {
-  equation: string; // e.g. "A X + X B = C"
-  first: string; // owner of S's eigenvalues, e.g. "A"
-  second: string; // owner of T's eigenvalues, e.g. "B"
-}
+export type { QuasiTriangularEquation, SingularLabels } from "./sylvesterBlocks";
 
 /** Starts of the diagonal blocks of an upper quasi-triangular n×n row-major matrix. */
 function blockStarts(t: Float64Array, n: number): number[] {
@@ -30,22 +22,9 @@ function blockStarts(t: Float64Array, n: number): number[] {
   return starts;
 }
 
-/** Eigenvalues of the 1×1 or 2×2 diagonal block at i0 (size p). */
-function blockEigenvalues(t: Float64Array, n: number, i0: number, p: number): Complex[] {
-  if (p === 1) return [{ re: t[i0 * n + i0]!, im: 0 }];
-  const a = t[i0 * n + i0]!, b = t[i0 * n + i0 + 1]!, c = t[(i0 + 1) * n + i0]!, d = t[(i0 + 1) * n + i0 + 1]!;
-  const half = 0.5 * (a + d);
-  const disc = 0.25 * (a - d) * (a - d) + b * c;
-  if (disc >= 0) return [{ re: half + Math.sqrt(disc), im: 0 }, { re: half - Math.sqrt(disc), im: 0 }];
-  const im = Math.sqrt(-disc);
-  return [{ re: half, im }, { re: half, im: -im }];
-}
-
-// Scratch for solveSmallBlock (at most 4×4): the kernel is synchronous and not re-entrant, so
-// module-level buffers avoid an allocation per block (n²/4…n² blocks per solve).
+// Scratch for solveSmallBlock's Kronecker matrix (at most 4×4; the kernel is synchronous and
+// not re-entrant, so a module-level buffer avoids an allocation per block).
 const blockMatrixScratch = new Float64Array(16);
-const permutationScratch = new Int32Array(4);
-const solutionScratch = new Float64Array(4);
 
 /**
  * Solves the p×q block equation (p, q ∈ {1, 2}) in place in `r` (row-major p×q):
@@ -86,39 +65,7 @@ function solveSmallBlock(
       }
     }
   }
-  const perm = permutationScratch; // column permutation
-  for (let k = 0; k < N; k++) perm[k] = k;
-  let minPivot = Infinity;
-  for (let k = 0; k < N; k++) {
-    let bi = k, bj = k, best = -1;
-    for (let i = k; i < N; i++) for (let j = k; j < N; j++) {
-      const v = Math.abs(M[i * N + j]!);
-      if (v > best) { best = v; bi = i; bj = j; }
-    }
-    minPivot = Math.min(minPivot, best);
-    if (!(best > threshold)) return best;
-    if (bi !== k) {
-      for (let j = 0; j < N; j++) { const x = M[k * N + j]!; M[k * N + j] = M[bi * N + j]!; M[bi * N + j] = x; }
-      const x = r[k]!; r[k] = r[bi]!; r[bi] = x;
-    }
-    if (bj !== k) {
-      for (let i = 0; i < N; i++) { const x = M[i * N + k]!; M[i * N + k] = M[i * N + bj]!; M[i * N + bj] = x; }
-      const x = perm[k]!; perm[k] = perm[bj]!; perm[bj] = x;
-    }
-    for (let i = k + 1; i < N; i++) {
-      const l = M[i * N + k]! / M[k * N + k]!;
-      for (let j = k + 1; j < N; j++) M[i * N + j] -= l * M[k * N + j]!;
-      r[i] -= l * r[k]!;
-    }
-  }
-  const z = solutionScratch;
-  for (let i = N - 1; i >= 0; i--) {
-    let v = r[i]!;
-    for (let j = i + 1; j < N; j++) v -= M[i * N + j]! * z[j]!;
-    z[i] = v / M[i * N + i]!;
-  }
-  for (let k = 0; k < N; k++) r[perm[k]!] = z[k]!;
-  return minPivot;
+  return solveByCompletePivoting(M, N, r, threshold);
 }
 
 /**
@@ -201,29 +148,6 @@ export function solveQuasiTriangularInPlace(
     }
   }
   for (let r = 0; r < n; r++) for (let c = 0; c < m; c++) f[r * m + c] = yt[c * n + r]!;
-}
-
-function throwSingular(
-  kind: QuasiTriangularEquation, s: Float64Array, n: number, i0: number, p: number,
-  t: Float64Array, m: number, j0: number, q: number, pivot: number, threshold: number, labels: SingularLabels,
-): never {
-  const ls = blockEigenvalues(s, n, i0, p);
-  const mu = blockEigenvalues(t, m, j0, q);
-  let best = { l: ls[0]!, u: mu[0]!, gap: Infinity };
-  for (const l of ls) for (const u of mu) {
-    const gap = kind === "sylvester"
-      ? Math.hypot(l.re + u.re, l.im + u.im)
-      : Math.hypot(l.re * u.re - l.im * u.im - 1, l.re * u.im + l.im * u.re);
-    if (gap < best.gap) best = { l, u, gap };
-  }
-  const fmt = (z: Complex) => (z.im === 0 ? `${z.re.toPrecision(6)}` : `${z.re.toPrecision(6)}${z.im >= 0 ? "+" : "−"}${Math.abs(z.im).toPrecision(6)}i`);
-  const relation = kind === "sylvester" ? "λ + μ ≈ 0" : "λ·μ ≈ 1";
-  throw new EngineError(
-    "singular",
-    `${labels.equation} is singular: eigenvalue λ = ${fmt(best.l)} of ${labels.first} and μ = ${fmt(best.u)} of ${labels.second} satisfy ${relation} ` +
-      `(|${kind === "sylvester" ? "λ + μ" : "λμ − 1"}| = ${best.gap.toExponential(2)}, threshold ${threshold.toExponential(2)})`,
-    { eigenvalueFirst: best.l, eigenvalueSecond: best.u, gap: best.gap, pivot, threshold },
-  );
 }
 
 function requireMatrix(value: unknown, name: string): Matrix {
