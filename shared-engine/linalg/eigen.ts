@@ -23,8 +23,11 @@ interface Prepared {
   z: Float64Array | null;
   perm: Int32Array;
   scale: Float64Array;
+  /** Eigenvalues of the (possibly scaled) problem: λ(A) = up·(wr + i·wi). */
   wr: Float64Array;
   wi: Float64Array;
+  /** A power of two: 1, or 2^e when A was scaled by 2^−e (see `prepare`). */
+  up: number;
 }
 
 function prepare(A: Matrix | number[][], wantVectors: boolean): Prepared {
@@ -32,6 +35,19 @@ function prepare(A: Matrix | number[][], wantVectors: boolean): Prepared {
   requireSquareFinite(M, "A");
   const n = M.rows;
   const t = toFloat64(M);
+  // Very large or very small matrices (largest entry outside [2^−300, 2^300]): products of two
+  // entries would overflow or underflow in balancing, shifts and reflectors, so work on 2^−e·A
+  // (largest entry in [1, 2)). Exact for a power of two; eigenvectors are unchanged, the
+  // eigenvalues are scaled back on output (LAPACK's drivers scale likewise).
+  let big = 0;
+  for (let i = 0; i < n * n; i++) big = Math.max(big, Math.abs(t[i]));
+  let up = 1;
+  if (big > 2 ** 300 || (big > 0 && big < 2 ** -300)) {
+    const e = Math.floor(Math.log2(big));
+    const down = 2 ** -e;
+    for (let i = 0; i < n * n; i++) t[i] *= down;
+    up = 2 ** e;
+  }
   const perm = new Int32Array(n);
   const scale = new Float64Array(n);
   const { low, high } = balanceInPlace(t, n, true, true, perm, scale);
@@ -52,7 +68,7 @@ function prepare(A: Matrix | number[][], wantVectors: boolean): Prepared {
       });
     }
   }
-  return { n, t, z, perm, scale, wr, wi };
+  return { n, t, z, perm, scale, wr, wi, up };
 }
 
 /**
@@ -81,9 +97,9 @@ function prepare(A: Matrix | number[][], wantVectors: boolean): Prepared {
  *   // residual check: |det(A − λI)| = |λ² + 3λ + 2| < 1e-14 for each λ
  */
 export function eigenvalues(A: Matrix | number[][]): Complex[] {
-  const { n, wr, wi } = prepare(A, false);
+  const { n, wr, wi, up } = prepare(A, false);
   const out: Complex[] = new Array(n);
-  for (let i = 0; i < n; i++) out[i] = { re: wr[i], im: wi[i] === 0 ? 0 : wi[i] }; // never −0
+  for (let i = 0; i < n; i++) out[i] = { re: up * wr[i], im: wi[i] === 0 ? 0 : up * wi[i] }; // never −0
   return out;
 }
 
@@ -117,7 +133,7 @@ export function eigenvalues(A: Matrix | number[][]): Complex[] {
  *   // vectors[k] is ±e_k; ‖A·v − λ·v‖ < 1e-15 for each pair
  */
 export function eigenvectors(A: Matrix | number[][]): { values: Complex[]; vectors: Complex[][] } {
-  const { n, t, z, perm, scale, wr, wi } = prepare(A, true);
+  const { n, t, z, perm, scale, wr, wi, up } = prepare(A, true);
   const zz = z as Float64Array;
   const values: Complex[] = new Array(n);
   const vectors: Complex[][] = new Array(n);
@@ -145,10 +161,10 @@ export function eigenvectors(A: Matrix | number[][]): { values: Complex[]; vecto
     const v: Complex[] = new Array(n);
     for (let i = 0; i < n; i++) v[perm[i]] = { re: scale[i] * yr[i], im: scale[i] * yi[i] };
     normalise(v, k);
-    values[k] = { re: wr[k], im: wi[k] === 0 ? 0 : wi[k] };
+    values[k] = { re: up * wr[k], im: wi[k] === 0 ? 0 : up * wi[k] };
     vectors[k] = v;
     if (pair) {
-      values[k + 1] = { re: wr[k + 1], im: wi[k + 1] };
+      values[k + 1] = { re: up * wr[k + 1], im: up * wi[k + 1] };
       vectors[k + 1] = v.map((c) => ({ re: c.re, im: c.im === 0 ? 0 : -c.im }));
       k++;
     }

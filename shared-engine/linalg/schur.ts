@@ -53,6 +53,8 @@ export function defaultSchurIterationLimit(n: number): number {
  * Linear Algebra Appl. 186 (1993). The kernels keep Qᵀ rather than Q (row-major: a reflector
  * acting on columns k..k+2 of Q then updates three contiguous rows), from the accumulation
  * of the Hessenberg reflectors to the end of the sweeps, and transpose once into the result.
+ * A matrix whose largest entry lies outside [2^−300, 2^300] is factored as 2^−e·A (largest
+ * entry in [1, 2)) and T scaled back, both exact, so products of entries cannot overflow.
  *
  * Cost: about 25·n³ flops with Q (10/3·n³ Hessenberg, the rest QR sweeps, typically 2–4 per
  * eigenvalue); O(n²) memory. Iteration limit: `maxIterations` sweeps in total (default
@@ -120,7 +122,22 @@ export function realSchurRowMajor(a: Float64Array, n: number, maxIterations: num
  * `t` and `qt` must not alias `a` or each other, nor the Hessenberg/transpose workspaces.
  */
 export function realSchurInto(a: Float64Array, n: number, maxIterations: number, t: Float64Array, qt: Float64Array): number {
-  for (let i = 0; i < n * n; i++) t[i] = a[i];
+  let big = 0;
+  for (let i = 0; i < n * n; i++) {
+    const v = a[i];
+    t[i] = v;
+    if (v > big) big = v;
+    else if (-v > big) big = -v;
+  }
+  // Very large or very small matrices: products of two entries would overflow or underflow in
+  // the shifts and reflectors, so work on 2^−e·A (largest entry in [1, 2)) and scale T back.
+  // Powers of two make both scalings exact; Q is unchanged (LAPACK's drivers scale likewise).
+  const scaled = big > SCALE_ABOVE || (big > 0 && big < SCALE_BELOW);
+  const exponent = scaled ? Math.floor(Math.log2(big)) : 0;
+  if (scaled) {
+    const down = 2 ** -exponent;
+    for (let i = 0; i < n * n; i++) t[i] *= down;
+  }
   reduceToHessenbergTransposedInPlace(t, n, 0, n - 1, qt);
   if (eigenvalueRe.length < n) {
     eigenvalueRe = new Float64Array(n);
@@ -129,6 +146,10 @@ export function realSchurInto(a: Float64Array, n: number, maxIterations: number,
   const iterations = francisQRTransposedInPlace(t, n, 0, n - 1, true, qt, eigenvalueRe, eigenvalueIm, maxIterations);
   // exact zeros below the quasi-triangle (the sweeps leave them zero; make it a guarantee)
   for (let i = 2; i < n; i++) for (let j = 0, row = i * n; j < i - 1; j++) t[row + j] = 0;
+  if (scaled) {
+    const up = 2 ** exponent;
+    for (let i = 0; i < n * n; i++) t[i] *= up;
+  }
   try {
     checkSchurProbe(a, t, qt, n, 1000 * n * ULP, "realSchur", true);
   } catch (error) {
@@ -142,6 +163,11 @@ export function realSchurInto(a: Float64Array, n: number, maxIterations: number,
   }
   return iterations;
 }
+
+// realSchurInto scales matrices whose largest entry lies outside [2^−300, 2^300] (about 5e-91
+// to 2e90): products of two entries then stay far from overflow and underflow.
+const SCALE_ABOVE = 2 ** 300;
+const SCALE_BELOW = 2 ** -300;
 
 // wr/wi of realSchurInto (the eigenvalues are read off T afterwards).
 let eigenvalueRe = new Float64Array(0);

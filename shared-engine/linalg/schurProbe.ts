@@ -43,12 +43,25 @@ export function checkSchurProbe(a: Float64Array, t: Float64Array, q: Float64Arra
     a3 += a[i + 3] * a[i + 3];
   }
   for (let i = nn4; i < nn; i++) a0 += a[i] * a[i];
-  const normA = Math.sqrt(a0 + a1 + a2 + a3);
+  let normA = Math.sqrt(a0 + a1 + a2 + a3);
   let normX = 0;
   let res = 0;
   for (let i = 0; i < n; i++) {
     normX += w[x + i] * w[x + i];
     res += (w[aqx + i] - w[qtx + i]) ** 2;
+  }
+  // Entries beyond ~1e154 (or below ~1e-154) overflow (underflow) the plain sums of squares:
+  // redo both with the entries scaled by the largest |a_ij|, as a scaled 2-norm does.
+  if (!(normA < 1e150 && normA > 1e-150) || !Number.isFinite(res)) {
+    let big = 0;
+    for (let i = 0; i < nn; i++) big = Math.max(big, Math.abs(a[i]));
+    if (big > 0 && Number.isFinite(big)) {
+      let sa = 0, sr = 0;
+      for (let i = 0; i < nn; i++) sa += (a[i] / big) ** 2;
+      for (let i = 0; i < n; i++) sr += ((w[aqx + i] - w[qtx + i]) / big) ** 2;
+      normA = Math.sqrt(sa); // both in units of `big`: the ratio below is unchanged
+      res = sr;
+    }
   }
   // Qᵀ·(Q·x) into the slot of T·x (no longer needed)
   if (qIsTransposed) matVec(q, n, w, qx, tx);
