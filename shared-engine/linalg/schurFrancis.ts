@@ -186,9 +186,9 @@ export function francisQRTransposedInPlace(
         }
       }
       // look for two consecutive small subdiagonal elements (start of the bulge). The test
-      // compares |h(m,m−1)|·(|v1|+|v2|) with ε·|v0|·(…), which does not depend on the scale of
-      // v, so v is normalised (by the sum of its magnitudes, as dlahqr does) only once, at the
-      // chosen m; the scaling by 1/s inside protects the products against over/underflow.
+      // compares |h(m,m−1)|·(|v1|+|v2|) with ε·|v0|·(…) for v normalised by the sum of its
+      // magnitudes, as dlahqr does (one reciprocal per candidate); the scaling by 1/s inside
+      // protects the products against over/underflow.
       let m = i - 2;
       let v0 = 0, v1 = 0, v2 = 0;
       for (; m >= l; m--) {
@@ -202,8 +202,11 @@ export function francisQRTransposedInPlace(
         v1 = h21s * (hmm + h22 - rt1r - rt2r);
         v2 = h21s * h[mm + 2 * n + 1];
         if (m === l) break;
-        const h00 = Math.abs(h[mm - 1]) * (Math.abs(v1) + Math.abs(v2));
-        const h01 = Math.abs(v0) * (Math.abs(h[mm - n - 1]) + Math.abs(hmm) + Math.abs(h22));
+        // v is O(‖H‖): normalise it here too, or both sides overflow for entries beyond ~1e154
+        // and Inf ≤ Inf would start the bulge at the wrong row (a silent wrong similarity).
+        const rvm = 1 / (Math.abs(v0) + Math.abs(v1) + Math.abs(v2));
+        const h00 = Math.abs(h[mm - 1]) * ((Math.abs(v1) + Math.abs(v2)) * rvm);
+        const h01 = Math.abs(v0) * rvm * (Math.abs(h[mm - n - 1]) + Math.abs(hmm) + Math.abs(h22));
         if (h00 <= ULP * h01) break;
       }
       const rv = 1 / (Math.abs(v0) + Math.abs(v1) + Math.abs(v2));

@@ -1,7 +1,8 @@
 import { describe, it, expect } from "vitest";
 import fc from "fast-check";
 import { Matrix, QrDecomposition } from "ml-matrix";
-import { realSchur } from "../../../shared-engine/linalg/schur";
+import { francisQRInPlace, realSchur } from "../../../shared-engine/linalg/schur";
+import { reduceToHessenbergInPlace } from "../../../shared-engine/linalg/hessenberg";
 import { EPS, expectAtMost, expectComplexSetsClose, expectStandardQuasiTriangular, orthogonalSimilarityErrors, seededMatrix, expectEngineError as expectKind } from "../../helpers/assertions";
 import fixtures from "../../fixtures/linalg/eigen.json";
 
@@ -189,6 +190,22 @@ describe("realSchur", () => {
       expectAtMost(form.T.clone().sub(plain.T.clone().mul(scale)).norm("frobenius") / (plain.T.norm("frobenius") * scale), 1e-15, `T at 2^${k}`);
       expectAtMost(form.Q.clone().sub(plain.Q).norm("frobenius"), 1e-15, `Q at 2^${k}`);
     }
+  });
+
+  it("the Francis kernel itself keeps the similarity for entries near 1e±200 (no overflow in the bulge-start test)", () => {
+    // Regression: the start-row test multiplied unnormalised O(‖H‖) quantities, so beyond ~1e154
+    // Inf ≤ Inf started bulges at the wrong row and the eigenvalues came out wrong, silently.
+    // Reference: the same kernel on the unscaled matrix, times 2^k (exact scaling, common practice).
+    const n = 6;
+    const eig = (k: number): { re: number; im: number }[] => {
+      const h = Float64Array.from(seededMatrix(n, n, 77).flat(), (v) => v * 2 ** k);
+      reduceToHessenbergInPlace(h, n, 0, n - 1, null);
+      const wr = new Float64Array(n), wi = new Float64Array(n);
+      francisQRInPlace(h, n, 0, n - 1, false, null, wr, wi, 300);
+      return Array.from(wr, (re, i) => ({ re: re / 2 ** k, im: wi[i]! / 2 ** k }));
+    };
+    const plain = eig(0);
+    for (const k of [560, 664, -560, -664]) expectComplexSetsClose(eig(k), plain, 1e-14); // the unfixed kernel was off by O(1)
   });
 
   it("handles entries near 1e-150 beside entries of size 10 promptly (the pattern reported to hang ml-matrix's EVD)", () => {
