@@ -4,6 +4,7 @@
  */
 import { expect } from "vitest";
 import { EngineError } from "../../shared-engine/errors";
+import { doubleArray } from "../../shared-engine/linalg/arrayKernels";
 
 export const EPS = Number.EPSILON;
 
@@ -113,6 +114,23 @@ export function seededMatrix(rows: number, cols: number, seed: number): number[]
     return s / 2147483647 - 0.5;
   };
   return Array.from({ length: rows }, () => Array.from({ length: cols }, next));
+}
+
+/**
+ * Deterministic pseudo-random entries in [−0.5, 0.5) (Mulberry32, common practice) in a plain
+ * array of doubles (`doubleArray`, so V8 keeps the double element kind the array kernels want).
+ */
+export function seededDoubles(length: number, seed: number): number[] {
+  let a = seed >>> 0;
+  const out = doubleArray(length);
+  for (let i = 0; i < length; i++) {
+    a = (a + 0x6d2b79f5) >>> 0;
+    let t = a;
+    t = Math.imul(t ^ (t >>> 15), t | 1);
+    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
+    out[i] = ((t ^ (t >>> 14)) >>> 0) / 4294967296 - 0.5;
+  }
+  return out;
 }
 
 /**

@@ -2,21 +2,9 @@ import { describe, it, expect } from "vitest";
 import { doubleArray, oneNormArray, productIntoArray } from "../../../shared-engine/linalg/arrayKernels";
 import { solveInPlaceArray } from "../../../shared-engine/linalg/arraySolve";
 import { EngineError } from "../../../shared-engine/errors";
-import { expectAtMost } from "../../helpers/assertions";
+import { expectAtMost, seededDoubles } from "../../helpers/assertions";
 
-/** Deterministic pseudo-random entries in [−0.5, 0.5) (Mulberry32, common practice). */
-function randomArray(length: number, seed: number): number[] {
-  let a = seed >>> 0;
-  const out = doubleArray(length);
-  for (let i = 0; i < length; i++) {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    out[i] = ((t ^ (t >>> 14)) >>> 0) / 4294967296 - 0.5;
-  }
-  return out;
-}
+const randomArray = seededDoubles;
 
 function naiveProduct(a: number[], b: number[], m: number, p: number, q: number): number[] {
   const out: number[] = [];

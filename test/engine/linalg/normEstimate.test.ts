@@ -1,21 +1,10 @@
 import { describe, it, expect } from "vitest";
+import { seededDoubles } from "../../helpers/assertions";
 import { estimateProductOneNorm } from "../../../shared-engine/linalg/normEstimate";
 import { doubleArray } from "../../../shared-engine/linalg/arrayKernels";
 import { multiply, oneNormRowMajor } from "../../../shared-engine/linalg/denseKernels";
 
-/** Deterministic pseudo-random entries in [−0.5, 0.5) (Mulberry32, common practice). */
-function randomArray(length: number, seed: number): number[] {
-  let a = seed >>> 0;
-  const out = doubleArray(length);
-  for (let i = 0; i < length; i++) {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    out[i] = ((t ^ (t >>> 14)) >>> 0) / 4294967296 - 0.5;
-  }
-  return out;
-}
+const randomArray = seededDoubles;
 
 // Reference: the product formed with denseKernels' multiply, then its exact 1-norm.
 function exactNorm(factors: number[][], n: number): number {
