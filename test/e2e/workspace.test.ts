@@ -99,6 +99,57 @@ describe("design workspace in browser mode", () => {
     }
   });
 
+  it("enters a transfer function of two inputs and two outputs in a grid, kept across a reload", async () => {
+    const context = await launchBrowser(env.profileDir);
+    try {
+      const page = context.pages()[0] ?? (await context.newPage());
+      const problems = watchPageProblems(page, env.server.url.replace(/\/$/, ""));
+      await openDemo(page);
+      await page.getByRole("tab", { name: "Plant" }).click();
+      await page.locator("#plant-select").selectOption("queue-linear");
+      await page.getByRole("radio", { name: "Transfer function" }).check();
+      await page.getByLabel("Numerator", { exact: true }).waitFor();
+      const size = page.locator("form.dimension-row");
+      await size.getByLabel("Outputs").fill("2");
+      await size.getByLabel("Inputs").fill("2");
+      await size.getByRole("button", { name: "Apply sizes" }).click();
+      await page.getByTestId("tf-grid").waitFor();
+      // The SISO entry moved to (y1, u1); new pairs start as 0 over 1.
+      expect(await page.getByLabel("Denominator u1 → y1").inputValue()).toBe("1 1");
+      expect(await page.getByLabel("Numerator u2 → y1").inputValue()).toBe("0");
+      const num = page.getByLabel("Numerator u1 → y2");
+      await num.fill("0.5");
+      await num.press("Enter");
+      const den = page.getByLabel("Denominator u1 → y2");
+      await den.fill("1 0 4");
+      await den.press("Enter");
+      // A bad denominator is kept, marked and explained; the model keeps the last valid one.
+      const bad = page.getByLabel("Denominator u2 → y2");
+      await bad.fill("0 1");
+      await bad.press("Enter");
+      await expect.poll(() => bad.getAttribute("aria-invalid")).toBe("true");
+      await page.getByRole("alert").filter({ hasText: "leading denominator coefficient" }).first().waitFor();
+      await bad.fill("1 2");
+      await bad.press("Enter");
+      await expect.poll(() => bad.getAttribute("aria-invalid")).toBe(null);
+      await expect.poll(() => page.getByTestId("save-status").textContent(), { timeout: 10_000 }).toMatch(/^Saved/);
+      await page.getByTestId("tf-grid").scrollIntoViewIfNeeded();
+      await page.screenshot({ path: screenshotPath("workspace-tf-grid.png") });
+
+      await page.reload();
+      await openDemo(page);
+      await page.getByRole("tab", { name: "Plant" }).click();
+      await page.locator("#plant-select").selectOption("queue-linear");
+      await page.getByTestId("tf-grid").waitFor();
+      expect(await page.getByLabel("Denominator u1 → y2").inputValue()).toBe("1 0 4");
+      expect(await page.getByLabel("Numerator u1 → y2").inputValue()).toBe("0.5");
+      expect(await page.getByLabel("Denominator u2 → y2").inputValue()).toBe("1 2");
+      expect(problems).toEqual([]);
+    } finally {
+      await context.close();
+    }
+  });
+
   it("reads well in the dark theme", async () => {
     const context = await launchBrowser(env.profileDir, { colorScheme: "dark" });
     try {

@@ -7,3 +7,4 @@ export * from "./longTask";
 export * from "./nonlinearEditor";
 export * from "./nonlinearTasks";
 export * from "./locusState";
+export * from "./transferFunctionGrid";

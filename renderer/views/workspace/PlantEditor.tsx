@@ -13,6 +13,11 @@ import {
   signalNames,
   signalUnits,
   stateSpaceDimensions,
+  resizeTransferFunction,
+  transferFunctionEntry,
+  transferFunctionSize,
+  withTransferFunctionEntry,
+  TF_GRID_LIMIT,
   type MatrixName,
   type ModelSpec,
   type PlantDimensions,
@@ -221,7 +226,7 @@ function StateSpaceEditor({ store, state, plant }: Props) {
   );
 }
 
-function CoefficientField({ store, state, plant, field, label, value, parse }: Props & { field: string; label: string; value: string; parse: (t: string) => { ok: true; model: ModelSpec } | { ok: false; error: string } }) {
+function CoefficientField({ store, state, plant, field, label, shortLabel, value, parse }: Props & { field: string; label: string; shortLabel?: string; value: string; parse: (t: string) => { ok: true; model: ModelSpec } | { ok: false; error: string } }) {
   const key = `${plant.id}:${field}`;
   const draft = state.drafts[key];
   const [text, setText] = useState(draft?.text ?? value);
@@ -234,8 +239,8 @@ function CoefficientField({ store, state, plant, field, label, value, parse }: P
   const id = `coef-${plant.id}-${field}`;
   return (
     <div className="form-row coefficient-row">
-      <label htmlFor={id}>{label}</label>
-      <input id={id} className="text-input num wide" value={text} aria-invalid={draft ? true : undefined} onChange={(e) => setText(e.target.value)} onBlur={commit} onKeyDown={(e) => e.key === "Enter" && commit()} />
+      <label htmlFor={id}>{shortLabel ?? label}</label>
+      <input id={id} className="text-input num wide" aria-label={shortLabel ? label : undefined} value={text} aria-invalid={draft ? true : undefined} onChange={(e) => setText(e.target.value)} onBlur={commit} onKeyDown={(e) => e.key === "Enter" && commit()} />
       {draft && (
         <span className="error-text" role="alert">
           {draft.error}
@@ -248,22 +253,95 @@ function CoefficientField({ store, state, plant, field, label, value, parse }: P
 function TransferFunctionEditor(props: Props) {
   const model = props.plant.model;
   if (model.type !== "transfer-function") return null;
-  if (!Array.isArray(model.numerator) || Array.isArray(model.numerator[0])) {
-    return <p className="muted">This plant has a transfer function per input–output pair; edit it in the project file, or switch to state space.</p>;
-  }
-  const vec = (v: unknown) => (v as number[]).join(" ");
-  const parser = (which: "numerator" | "denominator") => (t: string) => {
+  const { outputs, inputs } = transferFunctionSize(model);
+  const names = (kind: "inputs" | "outputs", count: number) =>
+    Array.from({ length: count }, (_, k) => model.names?.[kind]?.[k] ?? `${kind === "inputs" ? "u" : "y"}${k + 1}`);
+  const inputNames = names("inputs", inputs);
+  const outputNames = names("outputs", outputs);
+  const vec = (v: number[]) => v.join(" ");
+  const parser = (i: number, j: number, which: "numerator" | "denominator") => (t: string) => {
     const r = parseVectorText(t);
     if (!r.ok) return r;
     if (which === "denominator" && (r.values[0] ?? 0) === 0) return { ok: false as const, error: "The leading denominator coefficient must not be zero." };
-    return { ok: true as const, model: { ...model, [which]: r.values } as ModelSpec };
+    return { ok: true as const, model: withTransferFunctionEntry(model, i, j, which, r.values) };
   };
+  const single = outputs === 1 && inputs === 1;
   return (
     <div className="coefficients">
-      <p className="muted hint">Coefficients, highest power of s (or z) first, e.g. “1 3 2” for s² + 3s + 2.</p>
-      <CoefficientField {...props} field="numerator" label="Numerator" value={vec(model.numerator)} parse={parser("numerator")} />
-      <CoefficientField {...props} field="denominator" label="Denominator" value={vec(model.denominator)} parse={parser("denominator")} />
+      <TransferFunctionSize store={props.store} plant={props.plant} outputs={outputs} inputs={inputs} />
+      <p className="muted hint">Coefficients, highest power of s (or z) first, e.g. “1 3 2” for s² + 3s + 2.{single ? "" : " One transfer function per output (row) and input (column); “0” over “1” where an input does not reach an output."}</p>
+      {single ? (
+        <>
+          <CoefficientField {...props} field="numerator" label="Numerator" value={vec(transferFunctionEntry(model, 0, 0).numerator)} parse={parser(0, 0, "numerator")} />
+          <CoefficientField {...props} field="denominator" label="Denominator" value={vec(transferFunctionEntry(model, 0, 0).denominator)} parse={parser(0, 0, "denominator")} />
+        </>
+      ) : (
+        <div className="tf-grid-scroll">
+        <table className="tf-grid" data-testid="tf-grid">
+          <thead>
+            <tr>
+              <th scope="col" className="tf-corner">output ╲ input</th>
+              {inputNames.map((n) => <th key={n} scope="col" className="mono">{n}</th>)}
+            </tr>
+          </thead>
+          <tbody>
+            {outputNames.map((out, i) => (
+              <tr key={out}>
+                <th scope="row" className="mono">{out}</th>
+                {inputNames.map((inp, j) => {
+                  const e = transferFunctionEntry(model, i, j);
+                  return (
+                    <td key={inp}>
+                      <CoefficientField {...props} field={`tf.${i}.${j}.numerator`} label={`Numerator ${inp} → ${out}`} shortLabel="num" value={vec(e.numerator)} parse={parser(i, j, "numerator")} />
+                      <CoefficientField {...props} field={`tf.${i}.${j}.denominator`} label={`Denominator ${inp} → ${out}`} shortLabel="den" value={vec(e.denominator)} parse={parser(i, j, "denominator")} />
+                    </td>
+                  );
+                })}
+              </tr>
+            ))}
+          </tbody>
+        </table>
+        </div>
+      )}
     </div>
+  );
+}
+
+/** Outputs × inputs of a transfer-function plant; applying keeps the entries that remain. */
+function TransferFunctionSize({ store, plant, outputs, inputs }: { store: WorkspaceStore; plant: PlantSpec; outputs: number; inputs: number }) {
+  const [draft, setDraft] = useState({ outputs, inputs });
+  useEffect(() => setDraft({ outputs, inputs }), [outputs, inputs]);
+  const valid = (v: number) => Number.isInteger(v) && v >= 1 && v <= TF_GRID_LIMIT;
+  const changed = draft.outputs !== outputs || draft.inputs !== inputs;
+  return (
+    <form
+      className="form-row dimension-row"
+      onSubmit={(e) => {
+        e.preventDefault();
+        if (!valid(draft.outputs) || !valid(draft.inputs) || plant.model.type !== "transfer-function") return;
+        const model = resizeTransferFunction(plant.model, draft.outputs, draft.inputs);
+        store.edit(`changed plant ${plant.id} to ${draft.outputs} outputs and ${draft.inputs} inputs`, (doc) => setModel(doc, plant.id, model));
+      }}
+    >
+      {(["outputs", "inputs"] as const).map((kind) => (
+        <label key={kind} className="dimension">
+          {KIND_LABEL[kind]}
+          <input
+            type="number"
+            className="text-input num tiny"
+            min={1}
+            max={TF_GRID_LIMIT}
+            value={draft[kind]}
+            aria-invalid={valid(draft[kind]) ? undefined : true}
+            onChange={(e) => setDraft({ ...draft, [kind]: Math.round(Number(e.target.value)) })}
+          />
+        </label>
+      ))}
+      <button type="submit" className="button-quiet small" disabled={!changed || !valid(draft.outputs) || !valid(draft.inputs)}>
+        Apply sizes
+      </button>
+      {!(valid(draft.outputs) && valid(draft.inputs)) && <span className="error-text" role="alert">Outputs and inputs: whole numbers from 1 to {TF_GRID_LIMIT}.</span>}
+    </form>
   );
 }
 
