@@ -7,7 +7,7 @@
 import { describe, expect, it } from "vitest";
 import type { Page } from "playwright-core";
 import { DEMO_PROJECT_NAME } from "../../renderer/db/demoProject";
-import { launchBrowser, screenshotPath, watchPageProblems, useServedRenderer } from "./helpers";
+import { freshProfileDir, launchBrowser, removeProfileDir, screenshotPath, watchPageProblems, useServedRenderer } from "./helpers";
 
 const env = useServedRenderer();
 
@@ -100,7 +100,9 @@ describe("design workspace in browser mode", () => {
   });
 
   it("enters a transfer function of two inputs and two outputs in a grid, kept across a reload", async () => {
-    const context = await launchBrowser(env.profileDir);
+    // Its own profile: reshaping the demo's plant would leave the shared profile's demo invalid.
+    const profile = freshProfileDir();
+    const context = await launchBrowser(profile);
     try {
       const page = context.pages()[0] ?? (await context.newPage());
       const problems = watchPageProblems(page, env.server.url.replace(/\/$/, ""));
@@ -147,6 +149,7 @@ describe("design workspace in browser mode", () => {
       expect(problems).toEqual([]);
     } finally {
       await context.close();
+      removeProfileDir(profile);
     }
   });
 
