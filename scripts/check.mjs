@@ -31,7 +31,7 @@ function vitestCounts(file) {
     const report = JSON.parse(readFileSync(file, "utf8"));
     return {
       passed: report.numPassedTests ?? 0,
-      failed: (report.numFailedTests ?? 0) + (report.numFailedTestSuites ?? 0) - countSuitesWithFailedTests(report),
+      failed: (report.numFailedTests ?? 0) + countFilesFailedWithoutTests(report),
       skipped: (report.numPendingTests ?? 0) + (report.numTodoTests ?? 0),
     };
   } catch {
@@ -39,10 +39,12 @@ function vitestCounts(file) {
   }
 }
 
-// A suite that failed only because some of its tests failed is already counted by its tests;
-// a suite that failed to load (syntax error, import error) counts as one failure.
-function countSuitesWithFailedTests(report) {
-  return (report.testResults ?? []).filter((s) => s.status === "failed" && (s.assertionResults ?? []).some((t) => t.status === "failed")).length;
+// A test file that failed only because some of its tests failed is already counted by its
+// tests; a file that failed without a failing test (syntax error, import error, a failing
+// hook) counts as one failure. (numFailedTestSuites is not used: vitest counts describe
+// blocks there too, so one failing test inside a describe counted twice.)
+function countFilesFailedWithoutTests(report) {
+  return (report.testResults ?? []).filter((s) => s.status === "failed" && !(s.assertionResults ?? []).some((t) => t.status === "failed")).length;
 }
 
 let passed = 0;
