@@ -54,9 +54,14 @@ export interface GeneralizedSchurForm {
  * deflates an infinite eigenvalue). Deflation tests and zero chasing follow the structure of
  * LAPACK dhgeqz (Anderson et al., LAPACK Users' Guide, 3rd ed., SIAM 1999). No balancing.
  * Implementation: the Householder reflectors are applied one after the other, each pass also
- * forming the next reflector's product; neighbouring Givens rotations and neighbouring sweep
- * steps are applied in one pass where they touch the same rows or columns (the operations and
- * their order per entry are those of the plain algorithm).
+ * forming the next reflector's product; neighbouring Givens rotations are applied in one pass
+ * where they touch the same rows or columns, and rotations of Zᵀ skip the columns still zero.
+ * The sweep steps run in groups of two or three (qzSweep.ts): the block where a group's steps
+ * act from both sides is computed in straight-line code, in between the previous group's long
+ * loops; a group's left transformations take one pass over the far columns and the rows of Qᵀ,
+ * and its right transformations, multiplied into one 3×3 or 4×4 matrix, one pass over the rows
+ * above the bulge and the rows of Zᵀ. The transformations themselves are those of the plain
+ * algorithm (only the rounding of the grouped right transformations differs).
  *
  * Cost: about 66n³ flops with Q and Z (Golub & Van Loan, Matrix Computations, 4th ed., §7.7.7),
  * 30n³ without; memory 4n² doubles (one buffer, which S, T, Q and Z then view on disjoint
@@ -166,10 +171,14 @@ function schurOfLoaded(w: PencilWork & { scratch: Float64Array; all: Float64Arra
   cleanBelow(w);
   // S, T and the accumulators lie back to back in w.all: one pass checks them all (x·0 is 0
   // exactly for finite x and NaN otherwise, so the sum is 0 unless some entry is not finite).
-  const all = w.all;
-  let probe = 0;
-  for (let k = 0; k < all.length; k++) probe += all[k] * 0;
-  if (probe !== 0) {
+  // Four partial sums: one running sum is a chain of dependent additions (latency-bound).
+  const all = w.all, len = all.length;
+  let p0 = 0, p1 = 0, p2 = 0, p3 = 0, k = 0;
+  for (; k + 3 < len; k += 4) {
+    p0 += all[k] * 0; p1 += all[k + 1] * 0; p2 += all[k + 2] * 0; p3 += all[k + 3] * 0;
+  }
+  for (; k < len; k++) p0 += all[k] * 0;
+  if (p0 + p1 + p2 + p3 !== 0) {
     for (const [name, M] of [["S", w.S], ["T", w.T], ["Q", w.QT], ["Z", w.ZT]] as const) {
       if (M && !M.every(Number.isFinite)) {
         throw new EngineError("non-finite", `QZ produced a non-finite entry in ${name} (overflow); scale A and E`, { matrix: name });

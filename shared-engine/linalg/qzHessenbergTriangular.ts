@@ -133,8 +133,8 @@ export function reduceToHessenbergTriangular(w: PencilWork & { scratch: Float64A
       T[i * n + i] = rot[2];
       T[i * n + i - 1] = 0;
       cs[i] = c2; sn[i] = s2;
-      if (QT && ZT) rotateAccumulators(QT, ZT, n, i - 1, c, s, c2, s2);
-      else if (ZT) rotRows(ZT, n, i, i - 1, c2, s2, 0, n); // the Zᵀ half of rotateAccumulators
+      if (QT) rotRows(QT, n, i - 1, i, c, s, 0, n);
+      if (ZT) rotRows(ZT, n, i, i - 1, c2, s2, zeroColumnsOfZt(i - 1, j), n);
       i--;
     }
     // Rows in pairs: each row's pass is a chain of dependent rotations (latency-bound), and
@@ -230,30 +230,39 @@ function hessenbergTriangularPair(w: PencilWork, j: number, i: number, cs: Float
     T[oa + k] = c0 * xa + s0 * yb;
     T[ob + k] = c0 * yb - s0 * xa;
   }
-  if (QT && ZT) {
-    // Qᵀ rows: L_i then L_{i−1}. Zᵀ rows: R_i on (i, i−1), then R_{i−1} on (i−1, i−2).
-    for (let k = 0; k < n; k++) {
-      const xa = QT[oa + k], xb = QT[ob + k], xc = QT[oc + k];
-      const yb = c1 * xb + s1 * xc;
-      QT[oc + k] = c1 * xc - s1 * xb;
-      QT[oa + k] = c0 * xa + s0 * yb;
-      QT[ob + k] = c0 * yb - s0 * xa;
-      const za = ZT[oa + k], zb = ZT[ob + k], zc = ZT[oc + k];
-      const ub = c2 * zb - s2 * zc;
-      ZT[oc + k] = c2 * zc + s2 * zb;
-      ZT[ob + k] = c3 * ub + s3 * za;
-      ZT[oa + k] = c3 * za - s3 * ub;
-    }
-  } else if (ZT) {
-    // The same Zᵀ updates without Q (same operations, same order).
-    for (let k = 0; k < n; k++) {
-      const za = ZT[oa + k], zb = ZT[ob + k], zc = ZT[oc + k];
-      const ub = c2 * zb - s2 * zc;
-      ZT[oc + k] = c2 * zc + s2 * zb;
-      ZT[ob + k] = c3 * ub + s3 * za;
-      ZT[oa + k] = c3 * za - s3 * ub;
-    }
+  // Qᵀ rows: L_i then L_{i−1}. Zᵀ rows: R_i on (i, i−1), then R_{i−1} on (i−1, i−2), only on the
+  // columns where these rows can be nonzero (see `zeroColumnsOfZt`); one loop where both apply.
+  const z0 = ZT ? zeroColumnsOfZt(i - 2, j) : n;
+  for (let k = 0; QT && k < z0; k++) rotateQtColumn(QT, k, oa, ob, oc, c0, s0, c1, s1);
+  for (let k = z0; k < n; k++) {
+    if (QT) rotateQtColumn(QT, k, oa, ob, oc, c0, s0, c1, s1);
+    const za = ZT![oa + k], zb = ZT![ob + k], zc = ZT![oc + k];
+    const ub = c2 * zb - s2 * zc;
+    ZT![oc + k] = c2 * zc + s2 * zb;
+    ZT![ob + k] = c3 * ub + s3 * za;
+    ZT![oa + k] = c3 * za - s3 * ub;
   }
+}
+
+/** Column k of Qᵀ's rows oa, ob, oc (offsets): L_i (c1, s1) on rows (ob, oc), then L_{i−1} (c0, s0) on (oa, ob). */
+function rotateQtColumn(QT: Float64Array, k: number, oa: number, ob: number, oc: number, c0: number, s0: number, c1: number, s1: number): void {
+  const xa = QT[oa + k], xb = QT[ob + k], xc = QT[oc + k];
+  const yb = c1 * xb + s1 * xc;
+  QT[oc + k] = c1 * xc - s1 * xb;
+  QT[oa + k] = c0 * xa + s0 * yb;
+  QT[ob + k] = c0 * yb - s0 * xa;
+}
+
+/**
+ * Where rows r and r+1 of Zᵀ can first be nonzero when the reduction of column j mixes them:
+ * Zᵀ starts as the identity and step i of column j rotates its rows i−1 and i, so (by induction
+ * over the columns, the steps of a column being taken from the bottom) row c ≥ 1 vanishes on
+ * columns 0..max(1, c − j)−1 before column j, and rows r, r+1 both vanish on columns
+ * 0..max(1, r − j)−1 when they are mixed. The rotation is skipped there: it would only turn
+ * zeros into zeros. Returns max(1, r − j).
+ */
+function zeroColumnsOfZt(r: number, j: number): number {
+  return r - j > 1 ? r - j : 1;
 }
 
 /**
@@ -321,19 +330,6 @@ function rotRowsOfBoth(S: Float64Array, T: Float64Array, n: number, r: number, c
     const u = T[a + k], v = T[b + k];
     T[a + k] = c * u + s * v;
     T[b + k] = c * v - s * u;
-  }
-}
-
-/** Qᵀ rows (r, r+1) ← left rotation (c, s); Zᵀ rows (r+1, r) ← right rotation (c2, s2); one loop. */
-function rotateAccumulators(QT: Float64Array, ZT: Float64Array, n: number, r: number, c: number, s: number, c2: number, s2: number): void {
-  const a = r * n, b = a + n;
-  for (let k = 0; k < n; k++) {
-    const x = QT[a + k], y = QT[b + k];
-    QT[a + k] = c * x + s * y;
-    QT[b + k] = c * y - s * x;
-    const u = ZT[b + k], v = ZT[a + k];
-    ZT[b + k] = c2 * u + s2 * v;
-    ZT[a + k] = c2 * v - s2 * u;
   }
 }
 

@@ -1,6 +1,6 @@
 /**
  * Row-major Float64Array kernels shared by the QZ algorithm (qz.ts, qzHessenbergTriangular.ts,
- * qzIteration.ts) and the reordering of the generalized real Schur form (qzReorder.ts,
+ * qzIteration.ts, qzSweep*.ts) and the reordering of the generalized real Schur form (qzReorder.ts,
  * qzSwap.ts). Internal to linalg/: nothing here validates input.
  *
  * Conventions. The pencil under transformation is held as S (n×n) and T (n×n), row-major. The
@@ -172,16 +172,30 @@ export function negateRow(w: PencilWork, j: number, c0: number, c1: number): voi
 export function standardizeBlock2(w: PencilWork, j: number, rowStart: number, colEnd: number): 1 | 2 {
   const { n, S, T } = w;
   const j0 = j * n + j, j1 = j0 + n; // offsets of [j][j] and [j+1][j]
-  // 2×2 SVD of T's block: symmetrise, then diagonalise (Golub & Van Loan §8.5.2 Jacobi).
-  let a = T[j0], b = T[j0 + 1], d = T[j1 + 1];
-  const c = T[j1];
-  const theta = Math.atan2(c - b, a + d);
-  const c1 = Math.cos(theta), s1 = Math.sin(theta);
-  rotateLeft(w, j, j + 1, c1, s1, j, colEnd);
-  a = T[j0]; b = T[j0 + 1]; d = T[j1 + 1];
-  const phi = 0.5 * Math.atan2(2 * b, a - d);
-  const c2 = Math.cos(phi), s2 = Math.sin(phi);
-  rotateLeft(w, j, j + 1, c2, s2, j, colEnd);
+  // 2×2 SVD of T's block: a left rotation (c1, s1) by θ = atan2(c − b, a + d) makes it
+  // symmetric, then a Jacobi rotation (c2, s2) by φ = ½·atan2(2b', a' − d') from both sides
+  // diagonalises it (Golub & Van Loan §8.5.2). cos and sin are formed algebraically (a
+  // normalised vector, and the half-angle formulas on the branch without cancellation), and
+  // the two left rotations are applied as one, by θ + φ.
+  const a = T[j0], b = T[j0 + 1], c = T[j1], d = T[j1 + 1];
+  let c1 = 1, s1 = 0;
+  const r1 = norm2(a + d, c - b);
+  if (r1 > 0) { c1 = (a + d) / r1; s1 = (c - b) / r1; }
+  const as = c1 * a + s1 * c, bs = c1 * b + s1 * d, ds = c1 * d - s1 * b;
+  let c2 = 1, s2 = 0;
+  const x = as - ds, y = 2 * bs, r2 = norm2(x, y);
+  if (r2 > 0) {
+    const cos2 = x / r2, sin2 = y / r2;
+    if (cos2 >= 0) {
+      c2 = Math.sqrt(0.5 * (1 + cos2)); s2 = sin2 / (2 * c2);
+    } else {
+      // φ within π/4 of ±π/2; its sign is that of sin 2φ (of −0 too, as atan2 has it).
+      s2 = Math.sqrt(0.5 * (1 - cos2));
+      if (sin2 < 0 || (sin2 === 0 && 1 / sin2 < 0)) s2 = -s2;
+      c2 = sin2 / (2 * s2);
+    }
+  }
+  rotateLeft(w, j, j + 1, c1 * c2 - s1 * s2, s1 * c2 + c1 * s2, j, colEnd);
   rotateRight(w, j, j + 1, c2, s2, rowStart, j + 2);
   T[j0 + 1] = 0; T[j1] = 0;
   if (T[j0] < 0) negateRow(w, j, j, colEnd);
@@ -212,8 +226,8 @@ function splitRealBlock(w: PencilWork, j: number, rowStart: number, colEnd: numb
   }
   // Null vector z of M from its larger row: row (p, q) ⟂ z = (−q, p).
   let zx: number, zy: number;
-  if (Math.hypot(m00, m01) >= Math.hypot(m10, m11)) { zx = -m01; zy = m00; } else { zx = -m11; zy = m10; }
-  const zn = Math.hypot(zx, zy);
+  if (norm2(m00, m01) >= norm2(m10, m11)) { zx = -m01; zy = m00; } else { zx = -m11; zy = m10; }
+  const zn = norm2(zx, zy);
   if (zn === 0) { zx = 1; zy = 0; } else { zx /= zn; zy /= zn; }
   // Right rotation with first column z: new column j = zx·col j + zy·col j+1.
   rotateRight(w, j, j + 1, zx, zy, rowStart, j + 2);
@@ -227,6 +241,21 @@ function splitRealBlock(w: PencilWork, j: number, rowStart: number, colEnd: numb
   S[j1] = 0; T[j1] = 0;
   if (T[j0] < 0) negateRow(w, j, j, colEnd);
   if (T[j1 + 1] < 0) negateRow(w, j + 1, j + 1, colEnd);
+}
+
+/**
+ * sqrt(x² + y²) without harmful overflow or underflow: the plain formula when the sum of squares
+ * lies safely inside the normal range, the scaled one (LAPACK dlapy2) otherwise. Math.hypot is
+ * exact too, but several times slower in V8.
+ */
+function norm2(x: number, y: number): number {
+  const sq = x * x + y * y;
+  if (sq > 1e-280 && sq < 1e280) return Math.sqrt(sq);
+  const ax = Math.abs(x), ay = Math.abs(y);
+  const big = ax > ay ? ax : ay, small = ax > ay ? ay : ax;
+  if (small === 0 || big === Infinity || big !== big) return big + small;
+  const ratio = small / big;
+  return big * Math.sqrt(1 + ratio * ratio);
 }
 
 /** Frobenius norm of a flat array: the plain sum of squares when it is safely in range, scaled otherwise. */
@@ -307,7 +336,8 @@ export function matrixFromRowMajor(M: Float64Array, n: number, transpose: boolea
     return copy;
   }
   const rows = new Array<Float64Array>(n);
-  for (let i = 0; i < n; i++) rows[i] = own.subarray(i * n, i * n + n);
+  // A view constructor on the buffer costs half of what subarray() does (no species lookup).
+  for (let i = 0, o = own.byteOffset; i < n; i++, o += 8 * n) rows[i] = new Float64Array(own.buffer, o, n);
   m.data = rows;
   m.rows = n;
   return m as unknown as Matrix;
@@ -333,7 +363,7 @@ export function matrixViewOfRowMajor(M: Float64Array, n: number, transposeInPlac
   const m = new Matrix(0, n) as unknown as { data: unknown; rows: number };
   if (!Array.isArray(m.data)) return matrixFromRowMajor(M, n, false);
   const rows = new Array<Float64Array>(n);
-  for (let i = 0; i < n; i++) rows[i] = M.subarray(i * n, i * n + n);
+  for (let i = 0, o = M.byteOffset; i < n; i++, o += 8 * n) rows[i] = new Float64Array(M.buffer, o, n);
   m.data = rows;
   m.rows = n;
   return m as unknown as Matrix;

@@ -129,6 +129,26 @@ describe("qz special structure", () => {
     expect(form.eigenvalues[0]!.value!.im).toBeGreaterThan(0);
   });
 
+  it("standardises 2×2 complex blocks whichever way T's block has to be turned", () => {
+    // The Jacobi angle φ of T's symmetrised block lies within π/4 of 0 for E = diag(2, 1) and
+    // of ±π/2 for E = diag(1, 2) (the two branches of the half-angle formulas); the third E also
+    // needs the symmetrising rotation. Reference: the roots of the quadratic det(A − λE) = 0
+    // (closed form, common practice).
+    const A = new Matrix([[1, -2], [3, 1]]);
+    for (const e of [[[2, 0], [0, 1]], [[1, 0], [0, 2]], [[1, 0.5], [-0.3, 2]], [[-1, 0.25], [0.5, -3]]]) {
+      const E = new Matrix(e);
+      const form = qz(A, E);
+      expectValidForm(A, E, form, `E = ${JSON.stringify(e)}`);
+      const [[a11, a12], [a21, a22]] = A.to2DArray() as [[number, number], [number, number]];
+      const [[e11, e12], [e21, e22]] = e as [[number, number], [number, number]];
+      const qa = e11 * e22 - e12 * e21, qb = -(a11 * e22 + a22 * e11 - a12 * e21 - a21 * e12), qc = a11 * a22 - a12 * a21;
+      const disc = qb * qb - 4 * qa * qc;
+      expect(disc, "complex pair expected").toBeLessThan(0);
+      const re = -qb / (2 * qa), im = Math.sqrt(-disc) / (2 * Math.abs(qa));
+      expectComplexSetsClose(finiteValues(form.eigenvalues), [{ re, im }, { re, im: -im }], 1e-14, `E = ${JSON.stringify(e)}`);
+    }
+  });
+
   it("converges on the cyclic shift, where ordinary shifts stall, to the roots of unity", () => {
     // A = cyclic permutation (n = 6), E = I: eigenvalues e^{2πik/6} (hand computation); the
     // first sweeps make no progress, so the exceptional shift must break the cycle.
