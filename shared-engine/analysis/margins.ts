@@ -52,7 +52,9 @@ const MAX_EXTENSION_DECADES = 12;
  * Computes: for a SISO loop L (A: n×n, B: n×1, C: 1×n, D: 1×1; continuous or sampled) under
  *   unity negative feedback, with S = 1/(1 + L) and T = L/(1 + L):
  *   – gain crossovers ω_gc: |L(jω)| = 1; phase crossovers ω_pc: ∠L(jω) = −180° (mod 360°),
- *     i.e. L real and negative (ω = 0 included when L(0) < 0, and π/T for sampled loops);
+ *     i.e. L real and negative (ω = 0 included when L(0) < 0, and π/T for sampled loops; not
+ *     when L has a pole there — an eigenvalue of A within 1e-6·max(1, ‖A‖_F) of s = 0, z = 1
+ *     or z = −1 —, as with integral action, where L is unbounded and has no margin at DC);
  *   – gain margin at each ω_pc: GM = −20·log10|L(jω_pc)| dB (negative when |L| > 1 there: the
  *     gain may only decrease by that much); critical GM = the one of smallest |GM|;
  *   – phase margin at each ω_gc: PM = 180° + ∠L(jω_gc) reduced to (−180°, 180°]; critical PM =
@@ -107,7 +109,12 @@ export function loopMargins(L: StateSpace, options: { grid?: number[] } = {}): L
   const T = L.sampleTime;
   const warnings: string[] = [];
   const ev = createFrequencyResponseEvaluator(L);
-  const loop = new LoopEvaluator(ev);
+  // A pole of L at s = 0 (z = 1), or at z = −1 when sampled, makes L unbounded there; the
+  // solve at that exact point can still return a huge finite value (a pivot just above its
+  // tolerance for larger, integrator-carrying loops), whose arbitrary sign then read as a phase
+  // crossover with a gain margin near −300 dB. Those points are treated as poles instead.
+  const unboundedAt = boundaryPoles(L);
+  const loop = new LoopEvaluator(ev, (w) => (w === 0 && unboundedAt.zero) || (T !== null && w === Math.PI / T && unboundedAt.nyquist));
   const stability = closedLoopStability(L, d);
   if (!stability.stable) warnings.push(`closed loop is unstable (closed-loop eigenvalue ${stability.worst}); margins describe a loop that is already past the stability boundary`);
   const grid = options.grid !== undefined ? checkGrid(options.grid, T) : defaultGrid(L, loop, warnings);
@@ -266,11 +273,14 @@ class LoopEvaluator {
   // L(jω) by ω: the crossover search, the three peaks and the bandwidth all walk the same
   // grid, so each grid point is solved once instead of five times (values are immutable).
   private readonly memo = new Map<number, { re: number; im: number } | null>();
-  constructor(private readonly ev: FrequencyResponseEvaluator) {}
+  constructor(
+    private readonly ev: FrequencyResponseEvaluator,
+    private readonly isPole: (omega: number) => boolean = () => false,
+  ) {}
   at(omega: number): { re: number; im: number } | null {
     const known = this.memo.get(omega);
     if (known !== undefined) return known;
-    const value = this.ev.evaluateFrequency(omega, this.re, this.im) ? { re: this.re[0]!, im: this.im[0]! } : null;
+    const value = !this.isPole(omega) && this.ev.evaluateFrequency(omega, this.re, this.im) ? { re: this.re[0]!, im: this.im[0]! } : null;
     this.memo.set(omega, value);
     return value;
   }
@@ -278,6 +288,21 @@ class LoopEvaluator {
     const v = this.at(omega);
     return v === null ? Infinity : Math.hypot(v.re, v.im);
   }
+}
+
+/**
+ * Whether L has a pole at the real points of the stability boundary: s = 0 (continuous) or
+ * z = 1 (sampled), and z = −1 (sampled). A pole counts when an eigenvalue of A lies within
+ * 1e-6·max(1, ‖A‖_F) of the point: far above rounding (a double integrator's eigenvalues come out
+ * within about √ε·‖A‖ of 0) and far below any pole a margin at that frequency could describe.
+ */
+function boundaryPoles(L: StateSpace): { zero: boolean; nyquist: boolean } {
+  const n = L.A.rows;
+  if (n === 0) return { zero: false, nyquist: false };
+  const tol = 1e-6 * Math.max(1, L.A.norm("frobenius"));
+  const poles = eigenvalues(L.A);
+  const near = (re: number): boolean => poles.some((p) => Math.hypot(p.re - re, p.im) <= tol);
+  return L.sampleTime === null ? { zero: near(0), nyquist: false } : { zero: near(1), nyquist: near(-1) };
 }
 
 function closedLoopStability(L: StateSpace, d: number): { stable: boolean; worst: string } {
