@@ -12,6 +12,7 @@ export { controllableCanonicalForm, observableCanonicalForm } from "./canonicalF
 export { frequencyResponse, type FrequencyResponse, type ResponseChannel } from "./frequencyResponse";
 export { frequencyGrid, type FrequencyGridOptions } from "./frequencyGrid";
 export { loopMargins, type LoopMargins } from "./margins";
+export { loopAtInput } from "./loopAtInput";
 export { type DiskMargin } from "./diskMargin";
 export { stepResponse, impulseResponse, initialResponse, simulateLinear, defaultHorizon, type TimeResponse } from "./timeResponse";
 export { responseMetrics, type ResponseMetrics, type ResponseMetricsOptions } from "./responseMetrics";

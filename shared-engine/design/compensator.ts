@@ -15,7 +15,8 @@ import { EngineError } from "../errors";
 import { asMatrix, eigenvalues, reciprocalCondition, requireFinite, shapeOf, type Complex, type MatrixInput } from "../linalg";
 import { stateSpaceFromMatrices, type StateSpace } from "../model";
 import { loopMargins } from "../analysis/margins";
-import { blockMatrix, columnRange, rowSelection } from "./feedforward";
+import { loopAtInput } from "../analysis/loopAtInput";
+import { blockMatrix, rowSelection } from "./feedforward";
 import { poleSetMismatch } from "./poleSetMismatch";
 
 export interface CompensatorSpec {
@@ -251,10 +252,8 @@ function interconnect(model: StateSpace, c: ControllerParts, openInput: number |
 
 /** K_aug(sI − A + B_{≠0}K_{≠0})⁻¹B₀: the state-feedback loop broken at input 0. */
 function loopAtInputZero(A: Matrix, B: Matrix, K: Matrix, T: number | null): StateSpace {
-  let Aj = A.clone();
-  for (let c = 1; c < B.columns; c++) Aj = Aj.sub(columnRange(B, c, 1).mmul(rowSelection(K, [c])));
   if (B.columns === 0) return stateSpaceFromMatrices({ A: [], B: [], C: [], D: [[0]], sampleTime: T });
-  return stateSpaceFromMatrices({ A: Aj, B: columnRange(B, 0, 1), C: rowSelection(K, [0]), D: new Matrix(1, 1), sampleTime: T });
+  return loopAtInput(A, B, K, 0, T);
 }
 
 function marginWarnings(margins: NonNullable<AssembledCompensator["margins"]>, m: number): string[] {

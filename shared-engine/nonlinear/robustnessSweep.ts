@@ -7,6 +7,7 @@
  */
 import { Matrix } from "ml-matrix";
 import { loopMargins } from "../analysis/margins";
+import { loopAtInput } from "../analysis/loopAtInput";
 import { EngineError, toErrorPayload, type ErrorPayload } from "../errors";
 import { asMatrix, eigenvalues, requireFinite, type Complex, type MatrixInput } from "../linalg";
 import { discretize, stateSpaceFromMatrices } from "../model";
@@ -251,20 +252,7 @@ function smaller(a: number | null, b: number | null): number | null {
  */
 function loopsAtInput(A: Matrix, B: Matrix, C: Matrix, D: Matrix, K: Matrix, Ki: Matrix, tracked: number[], T: number | null) {
   const full = augmentedLoop(A, B, C, D, K, Ki, tracked, T);
-  const m = B.columns;
-  if (m === 1) return [full];
-  return Array.from({ length: m }, (_, j) => {
-    const Aj = full.A.clone();
-    for (let c = 0; c < m; c++) {
-      if (c === j) continue;
-      for (let i = 0; i < Aj.rows; i++) {
-        const bic = full.B.get(i, c);
-        if (bic === 0) continue;
-        for (let l = 0; l < Aj.columns; l++) Aj.set(i, l, Aj.get(i, l) - bic * full.C.get(c, l));
-      }
-    }
-    return stateSpaceFromMatrices({ A: Aj, B: full.B.subMatrixColumn([j]), C: full.C.subMatrixRow([j]), sampleTime: T });
-  });
+  return Array.from({ length: B.columns }, (_, j) => loopAtInput(full.A, full.B, full.C, j, T));
 }
 
 /** The augmented loop at the plant input, all m inputs: (A_aug, B_aug, K_aug) as above. */

@@ -41,26 +41,8 @@ export function stateFeedbackClosedLoop(plant: StateSpace, K: Matrix, Nr?: Matri
   return stateSpaceFromMatrices(out);
 }
 
-/**
- * The state-feedback loop broken at input channel j, the other channels closed:
- * L_j(s) = K_j (sI − A + B_{≠j} K_{≠j})⁻¹ B_j, for margins at the plant input. Negative
- * feedback closes it: u_j = −L_j u_j.
- */
-export function loopAtInput(A: Matrix, B: Matrix, K: Matrix, j: number, sampleTime: number | null): StateSpace {
-  const m = B.columns;
-  let Aj = A.clone();
-  for (let c = 0; c < m; c++) {
-    if (c === j) continue;
-    Aj = Aj.sub(B.subMatrixColumn([c]).mmul(K.subMatrixRow([c])));
-  }
-  return stateSpaceFromMatrices({
-    A: Aj,
-    B: B.subMatrixColumn([j]),
-    C: K.subMatrixRow([j]),
-    D: new Matrix(1, 1),
-    sampleTime,
-  });
-}
+// The loop broken at one input lives in analysis/ (the sweep and the compensator use it too).
+export { loopAtInput } from "../analysis";
 
 export function stack(top: Matrix, bottom: Matrix): Matrix {
   const out = new Matrix(top.rows + bottom.rows, Math.max(top.columns, bottom.columns));
