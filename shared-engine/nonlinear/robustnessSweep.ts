@@ -14,7 +14,6 @@ import { discretize, stateSpaceFromMatrices } from "../model";
 import { linearize } from "./linearize";
 import { solveOperatingPoint, type OperatingPointRequest } from "./operatingPoint";
 import type { CompiledNonlinearPlant } from "./plant";
-import { closedLoopMatrix } from "./closedLoopMatrix";
 
 export type SweepSampling =
   | { kind: "grid"; pointsPerParameter: number }
@@ -193,20 +192,15 @@ export function robustnessSweep(request: RobustnessSweepRequest): RobustnessSwee
       const { model } = linearize(plant, point);
       // Sampled: the plant as the controller sees it, through a zero-order hold at period T.
       const seen = T === null ? model : discretize(model, T, { method: "zoh" });
-      const Acl = closedLoopMatrix(seen.A, seen.B, seen.C, seen.D, K, Ki, tracked);
-      if (T !== null) {
-        // accumulators ξ[k+1] = ξ[k] + T·e[k]: the integrator rows scale by T, plus the identity
-        for (let i = 0; i < tracked.length; i++) {
-          for (let j = 0; j < Acl.columns; j++) Acl.set(n + i, j, T * Acl.get(n + i, j));
-          Acl.set(n + i, n + i, Acl.get(n + i, n + i) + 1);
-        }
-      }
-      sample.poles = eigenvalues(Acl);
+      // One augmented loop (plant + integrators or accumulators) serves both the closed-loop
+      // poles, eig(A_aug − B_aug·K_aug), and the loops broken at each input.
+      const open = augmentedLoop(seen.A, seen.B, seen.C, seen.D, K, Ki, tracked, T);
+      sample.poles = eigenvalues(open.A.clone().sub(open.B.mmul(open.C)));
       const scale = Math.max(1, ...sample.poles.map((z) => Math.hypot(z.re, z.im)));
       const band = 10 * Number.EPSILON * scale;
       sample.stable = T === null ? sample.poles.every((z) => z.re < -band) : sample.poles.every((z) => Math.hypot(z.re, z.im) < 1 - band);
-      const loops = loopsAtInput(seen.A, seen.B, seen.C, seen.D, K, Ki, tracked, T);
-      for (const loop of loops) {
+      for (let j = 0; j < m; j++) {
+        const loop = loopAtInput(open.A, open.B, open.C, j, T);
         const margins = loopMargins(loop);
         sample.gainMarginDb = smaller(sample.gainMarginDb, margins.gainMarginDb);
         sample.phaseMarginDeg = smaller(sample.phaseMarginDeg, margins.phaseMarginDeg);
@@ -244,18 +238,12 @@ function smaller(a: number | null, b: number | null): number | null {
 }
 
 /**
- * The loops broken at each plant input in turn, the other inputs' loops closed: with
- * K_aug = [K Ki], A_aug = [[A, 0], [C_I, 0]], B_aug = [B; D_I], loop j is
- * L_j(s) = K_aug,j (sI − A_aug + Σ_{c≠j} B_aug,c K_aug,c)⁻¹ B_aug,j (one loop when m = 1). Sampled
- * (T not null, A and B already the zero-order-hold Φ and Γ): L_j(z) with A_aug = [[Φ, 0],
- * [T·C_I, I]], B_aug = [Γ; T·D_I].
+ * The augmented loop at the plant input, all m inputs, as a state-space model (A_aug, B_aug,
+ * K_aug): K_aug = [K Ki], A_aug = [[A, 0], [C_I, 0]], B_aug = [B; D_I]; sampled (T not null,
+ * A and B already the zero-order-hold Φ and Γ, accumulators ξ[k+1] = ξ[k] + T·e[k]):
+ * A_aug = [[Φ, 0], [T·C_I, I]], B_aug = [Γ; T·D_I]. Closing it, A_aug − B_aug·K_aug, gives the
+ * closed-loop matrix of the sweep.
  */
-function loopsAtInput(A: Matrix, B: Matrix, C: Matrix, D: Matrix, K: Matrix, Ki: Matrix, tracked: number[], T: number | null) {
-  const full = augmentedLoop(A, B, C, D, K, Ki, tracked, T);
-  return Array.from({ length: B.columns }, (_, j) => loopAtInput(full.A, full.B, full.C, j, T));
-}
-
-/** The augmented loop at the plant input, all m inputs: (A_aug, B_aug, K_aug) as above. */
 function augmentedLoop(A: Matrix, B: Matrix, C: Matrix, D: Matrix, K: Matrix, Ki: Matrix, tracked: number[], T: number | null) {
   const n = A.rows, m = B.columns, r = tracked.length;
   const Aa = new Matrix(n + r, n + r);
