@@ -9,7 +9,7 @@ import { EngineError } from "../errors";
 import type { Complex } from "./complex";
 import { balanceInPlace } from "./balance";
 import { identityFloat64, reduceToHessenbergInPlace } from "./hessenberg";
-import { defaultSchurIterationLimit, francisQRInPlace } from "./schur";
+import { defaultSchurIterationLimit, francisQRInPlace, outOfRangeExponent } from "./schur";
 import { asMatrix, requireSquareFinite, toFloat64 } from "./validate";
 
 const ULP = Number.EPSILON;
@@ -41,12 +41,11 @@ function prepare(A: Matrix | number[][], wantVectors: boolean): Prepared {
   // eigenvalues are scaled back on output (LAPACK's drivers scale likewise).
   let big = 0;
   for (let i = 0; i < n * n; i++) big = Math.max(big, Math.abs(t[i]));
-  let up = 1;
-  if (big > 2 ** 300 || (big > 0 && big < 2 ** -300)) {
-    const e = Math.floor(Math.log2(big));
+  const e = outOfRangeExponent(big);
+  const up = 2 ** e;
+  if (e !== 0) {
     const down = 2 ** -e;
     for (let i = 0; i < n * n; i++) t[i] *= down;
-    up = 2 ** e;
   }
   const perm = new Int32Array(n);
   const scale = new Float64Array(n);

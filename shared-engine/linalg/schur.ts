@@ -132,8 +132,8 @@ export function realSchurInto(a: Float64Array, n: number, maxIterations: number,
   // Very large or very small matrices: products of two entries would overflow or underflow in
   // the shifts and reflectors, so work on 2^−e·A (largest entry in [1, 2)) and scale T back.
   // Powers of two make both scalings exact; Q is unchanged (LAPACK's drivers scale likewise).
-  const scaled = big > SCALE_ABOVE || (big > 0 && big < SCALE_BELOW);
-  const exponent = scaled ? Math.floor(Math.log2(big)) : 0;
+  const exponent = outOfRangeExponent(big);
+  const scaled = exponent !== 0;
   if (scaled) {
     const down = 2 ** -exponent;
     for (let i = 0; i < n * n; i++) t[i] *= down;
@@ -164,10 +164,18 @@ export function realSchurInto(a: Float64Array, n: number, maxIterations: number,
   return iterations;
 }
 
-// realSchurInto scales matrices whose largest entry lies outside [2^−300, 2^300] (about 5e-91
-// to 2e90): products of two entries then stay far from overflow and underflow.
+// Matrices whose largest entry lies outside [2^−300, 2^300] (about 5e-91 to 2e90) are worked on
+// as 2^−e·A: products of two entries then stay far from overflow and underflow.
 const SCALE_ABOVE = 2 ** 300;
 const SCALE_BELOW = 2 ** -300;
+
+/**
+ * e such that 2^−e·A has its largest entry in [1, 2) when `largest` = max|a_ij| lies outside
+ * [2^−300, 2^300]; 0 otherwise (no scaling). Shared by realSchurInto and eigenvalues.
+ */
+export function outOfRangeExponent(largest: number): number {
+  return largest > SCALE_ABOVE || (largest > 0 && largest < SCALE_BELOW) ? Math.floor(Math.log2(largest)) : 0;
+}
 
 // wr/wi of realSchurInto (the eigenvalues are read off T afterwards).
 let eigenvalueRe = new Float64Array(0);
