@@ -106,33 +106,61 @@ function PlantSampleTime({ store, state, plant }: Props) {
 }
 
 function DimensionControls({ store, plant, dims }: { store: WorkspaceStore; plant: PlantSpec; dims: PlantDimensions }) {
-  const [draft, setDraft] = useState(dims);
-  useEffect(() => setDraft(dims), [dims.states, dims.inputs, dims.outputs, dims.disturbances]);
-  const changed = (Object.keys(dims) as SignalKind[]).some((k) => draft[k] !== dims[k]);
+  return (
+    <SizeForm
+      sizes={dims}
+      kinds={Object.keys(KIND_LABEL) as SignalKind[]}
+      min={(kind) => (kind === "disturbances" ? 0 : 1)}
+      max={60}
+      onApply={(draft) => resizeDimensions(store, plant.id, draft)}
+    />
+  );
+}
+
+/**
+ * Number fields for signal counts with an "Apply sizes" button (enabled once a count changed).
+ * With `invalidMessage`, counts outside [min, max] or not whole are marked, explained and not
+ * applied.
+ */
+function SizeForm<K extends SignalKind>({ sizes, kinds, min, max, onApply, invalidMessage }: {
+  sizes: Record<K, number>;
+  kinds: readonly K[];
+  min: (kind: K) => number;
+  max: number;
+  onApply: (draft: Record<K, number>) => void;
+  invalidMessage?: string;
+}) {
+  const [draft, setDraft] = useState(sizes);
+  useEffect(() => setDraft(sizes), kinds.map((k) => sizes[k]));
+  const changed = kinds.some((k) => draft[k] !== sizes[k]);
+  const valid = (k: K) => invalidMessage === undefined || (Number.isInteger(draft[k]) && draft[k] >= min(k) && draft[k] <= max);
+  const allValid = kinds.every(valid);
   return (
     <form
       className="form-row dimension-row"
       onSubmit={(e) => {
         e.preventDefault();
-        resizeDimensions(store, plant.id, draft);
+        if (allValid) onApply(draft);
       }}
     >
-      {(Object.keys(KIND_LABEL) as SignalKind[]).map((kind) => (
+      {kinds.map((kind) => (
         <label key={kind} className="dimension">
           {KIND_LABEL[kind]}
           <input
             type="number"
             className="text-input num tiny"
-            min={kind === "disturbances" ? 0 : 1}
-            max={60}
+            min={min(kind)}
+            max={max}
             value={draft[kind]}
+            aria-invalid={valid(kind) ? undefined : true}
             onChange={(e) => setDraft({ ...draft, [kind]: Math.round(Number(e.target.value)) })}
           />
         </label>
       ))}
-      <button type="submit" className="button-quiet small" disabled={!changed}>
+      <button type="submit" className="button-quiet small" disabled={!changed || !allValid}>
         Apply sizes
       </button>
+      {!allValid && <span className="error-text" role="alert">{invalidMessage}</span>}
     </form>
   );
 }
@@ -309,39 +337,19 @@ function TransferFunctionEditor(props: Props) {
 
 /** Outputs × inputs of a transfer-function plant; applying keeps the entries that remain. */
 function TransferFunctionSize({ store, plant, outputs, inputs }: { store: WorkspaceStore; plant: PlantSpec; outputs: number; inputs: number }) {
-  const [draft, setDraft] = useState({ outputs, inputs });
-  useEffect(() => setDraft({ outputs, inputs }), [outputs, inputs]);
-  const valid = (v: number) => Number.isInteger(v) && v >= 1 && v <= TF_GRID_LIMIT;
-  const changed = draft.outputs !== outputs || draft.inputs !== inputs;
   return (
-    <form
-      className="form-row dimension-row"
-      onSubmit={(e) => {
-        e.preventDefault();
-        if (!valid(draft.outputs) || !valid(draft.inputs) || plant.model.type !== "transfer-function") return;
+    <SizeForm
+      sizes={{ outputs, inputs }}
+      kinds={["outputs", "inputs"] as const}
+      min={() => 1}
+      max={TF_GRID_LIMIT}
+      invalidMessage={`Outputs and inputs: whole numbers from 1 to ${TF_GRID_LIMIT}.`}
+      onApply={(draft) => {
+        if (plant.model.type !== "transfer-function") return;
         const model = resizeTransferFunction(plant.model, draft.outputs, draft.inputs);
         store.edit(`changed plant ${plant.id} to ${draft.outputs} outputs and ${draft.inputs} inputs`, (doc) => setModel(doc, plant.id, model));
       }}
-    >
-      {(["outputs", "inputs"] as const).map((kind) => (
-        <label key={kind} className="dimension">
-          {KIND_LABEL[kind]}
-          <input
-            type="number"
-            className="text-input num tiny"
-            min={1}
-            max={TF_GRID_LIMIT}
-            value={draft[kind]}
-            aria-invalid={valid(draft[kind]) ? undefined : true}
-            onChange={(e) => setDraft({ ...draft, [kind]: Math.round(Number(e.target.value)) })}
-          />
-        </label>
-      ))}
-      <button type="submit" className="button-quiet small" disabled={!changed || !valid(draft.outputs) || !valid(draft.inputs)}>
-        Apply sizes
-      </button>
-      {!(valid(draft.outputs) && valid(draft.inputs)) && <span className="error-text" role="alert">Outputs and inputs: whole numbers from 1 to {TF_GRID_LIMIT}.</span>}
-    </form>
+    />
   );
 }
 
