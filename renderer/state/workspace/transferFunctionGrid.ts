@@ -91,7 +91,7 @@ export function resizeTransferFunction(model: TransferFunctionModelSpec, outputs
 }
 
 /** The model with one coefficient list of the (output i, input j) pair replaced. */
-export function withTransferFunctionEntry(model: TransferFunctionModelSpec, i: number, j: number, which: "numerator" | "denominator", values: number[]): ModelSpec {
+export function withTransferFunctionEntry(model: TransferFunctionModelSpec, i: number, j: number, which: "numerator" | "denominator", values: number[]): TransferFunctionModelSpec {
   const grid = entriesOf(model);
   const row = grid[i];
   if (!row || !row[j]) throw new RangeError(`There is no transfer function from input ${j + 1} to output ${i + 1}.`);

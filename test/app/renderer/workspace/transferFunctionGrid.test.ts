@@ -32,11 +32,11 @@ describe("transfer-function grid of the plant editor", () => {
 
   it("builds a 2×2 plant whose DC gain is num(0)/den(0) entry by entry", () => {
     // G = [[2/(s+3), 1/(s+1)], [0, (s+4)/(s²+3s+2)]]: hand-derived G(0) = [[2/3, 1], [0, 2]].
-    let model = resizeTransferFunction(siso, 2, 2) as TransferFunctionModelSpec;
-    model = withTransferFunctionEntry(model, 0, 1, "denominator", [1, 1]) as TransferFunctionModelSpec;
-    model = withTransferFunctionEntry(model, 0, 1, "numerator", [1]) as TransferFunctionModelSpec;
-    model = withTransferFunctionEntry(model, 1, 1, "numerator", [1, 4]) as TransferFunctionModelSpec;
-    model = withTransferFunctionEntry(model, 1, 1, "denominator", [1, 3, 2]) as TransferFunctionModelSpec;
+    let model = resizeTransferFunction(siso, 2, 2);
+    model = withTransferFunctionEntry(model, 0, 1, "denominator", [1, 1]);
+    model = withTransferFunctionEntry(model, 0, 1, "numerator", [1]);
+    model = withTransferFunctionEntry(model, 1, 1, "numerator", [1, 4]);
+    model = withTransferFunctionEntry(model, 1, 1, "denominator", [1, 3, 2]);
     const project = { format: "loopwright-project", version: 1, name: "tf grid (test)", plants: [{ id: "p", model }], variants: [] };
     const loaded = loadProjectValue(project); // the grid's output passes the project-file validation
     const plant = buildPlantModel(loaded.project.plants[0]!.model as never, "plants[0].model");
