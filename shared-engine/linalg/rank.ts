@@ -22,6 +22,14 @@ export interface RankDecomposition {
   reciprocalCondition: number;
 }
 
+/** A as a Matrix, non-empty and finite (the errors name "A"). */
+function checkedInput(A: MatrixInput): Matrix {
+  const a = asMatrix(A, "A");
+  requireNonEmpty(a, "A");
+  requireFinite(a, "A");
+  return a;
+}
+
 function checkTolerance(tol: number | undefined): void {
   if (tol === undefined) return;
   if (typeof tol !== "number" || !Number.isFinite(tol) || tol < 0) {
@@ -57,9 +65,7 @@ function checkTolerance(tol: number | undefined): void {
  * Example: A = [[1, 2], [2, 4]] has rank 1, null space ±[2, −1]/√5; check ‖A·N‖ < 1e-15.
  */
 export function rankDecomposition(A: MatrixInput, tol?: number): RankDecomposition {
-  const a = asMatrix(A, "A");
-  requireNonEmpty(a, "A");
-  requireFinite(a, "A");
+  const a = checkedInput(A);
   checkTolerance(tol);
   const m = a.rows;
   const n = a.columns;
@@ -105,9 +111,7 @@ export function rankDecomposition(A: MatrixInput, tol?: number): RankDecompositi
  * Example: `numericalRank(new Matrix([[1, 2], [2, 4]])).rank === 1`; check σ₂ ≤ tolerance.
  */
 export function numericalRank(A: Matrix, tol?: number): { rank: number; tolerance: number; singularValues: number[] } {
-  const a = asMatrix(A, "A");
-  requireNonEmpty(a, "A");
-  requireFinite(a, "A");
+  const a = checkedInput(A);
   checkTolerance(tol);
   const singularValues = singularValuesOnly(a);
   const sigmaMax = singularValues[0] ?? 0;
@@ -165,9 +169,7 @@ export function rangeSpace(A: Matrix, tol?: number): Matrix {
  * Example: `reciprocalCondition(new Matrix([[2, 0], [0, 0.5]])) === 0.25`.
  */
 export function reciprocalCondition(A: Matrix): number {
-  const a = asMatrix(A, "A");
-  requireNonEmpty(a, "A");
-  requireFinite(a, "A");
+  const a = checkedInput(A);
   const sv = singularValuesOnly(a);
   const sigmaMax = sv[0]!;
   return sigmaMax === 0 ? 0 : sv[sv.length - 1]! / sigmaMax;
