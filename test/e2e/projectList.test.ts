@@ -93,6 +93,16 @@ describe("project list in browser mode", () => {
       // Eigenvalues of [[0, 1], [−2, −3]] are −1 and −2: roots of s² + 3s + 2 (common practice).
       await expect.poll(() => page.getByTestId("engine-check").textContent()).toMatch(/= (−1, −2|−2, −1)$/);
       await page.screenshot({ path: screenshotPath("project-list.png") });
+      // At the smallest target width every row action sits inside the table, apart from its
+      // neighbours (the Compare & history link once touched Open and pushed Delete past the card).
+      const layout = await page.evaluate(() => {
+        const table = document.querySelector(".project-table")!.getBoundingClientRect();
+        const boxes = [...document.querySelectorAll(".project-table tbody tr:first-child .cell-actions > *")].map((e) => e.getBoundingClientRect());
+        return { tableRight: table.right, rights: boxes.map((b) => b.right), lefts: boxes.map((b) => b.left) };
+      });
+      expect(layout.rights.length).toBe(4);
+      for (const right of layout.rights) expect(right).toBeLessThanOrEqual(layout.tableRight);
+      for (let k = 1; k < layout.lefts.length; k++) expect(layout.lefts[k]! - layout.rights[k - 1]!).toBeGreaterThanOrEqual(4);
 
       await page.getByRole("button", { name: "Theme: follow system" }).click(); // → light
       await page.getByRole("button", { name: "Theme: light" }).click(); // → dark
