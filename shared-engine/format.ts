@@ -26,6 +26,11 @@ export function formatComplex(value: Complex, digits = 6): string {
   return `${re} ${sign} ${formatReal(Math.abs(value.im), digits)}j`;
 }
 
+/** "1 input", "2 inputs", "0 disturbances": a count with its noun, plural unless exactly one. */
+export function formatCount(count: number, noun: string): string {
+  return `${count} ${noun}${count === 1 ? "" : "s"}`;
+}
+
 /** Renders rows as an aligned plain-text table (first row is the header). */
 export function formatTable(rows: readonly (readonly string[])[]): string {
   if (rows.length === 0) return "";

@@ -1,7 +1,7 @@
 /** `loopwright analyze FILE --plant ID`: structure, poles, zeros, DC gain, stability and modal coupling of one plant. */
 import { dispatch, type EngineResult } from "../../shared-engine/api";
 import { isEngineError } from "../../shared-engine/errors";
-import { formatComplex, formatReal, formatTable } from "../../shared-engine/format";
+import { formatComplex, formatCount, formatReal, formatTable } from "../../shared-engine/format";
 import { describeOptions, parseArgs, type OptionSpec } from "./args";
 import { EXIT, usageError } from "./io";
 import { matrixLines, optionalNumber, printJson, readProjectPlant } from "./projectPlant";
@@ -48,7 +48,7 @@ export const analyze: Command = {
     }
     const lines: string[] = [];
     lines.push(`Plant ${plant.id}${plant.name && plant.name !== plant.id ? ` — ${plant.name}` : ""}`);
-    lines.push(`  ${dimensions.states} states, ${dimensions.inputs} inputs, ${dimensions.outputs} outputs, ${dimensions.disturbances} disturbances; ${model.sampleTime === null ? "continuous" : `sampled at ${model.sampleTime} s`}`);
+    lines.push(`  ${formatCount(dimensions.states, "state")}, ${formatCount(dimensions.inputs, "input")}, ${formatCount(dimensions.outputs, "output")}, ${formatCount(dimensions.disturbances, "disturbance")}; ${model.sampleTime === null ? "continuous" : `sampled at ${model.sampleTime} s`}`);
     lines.push("");
     lines.push("Structure");
     lines.push(`  controllable: ${structure.controllable ? "yes" : `no (controllable dimension ${structure.controllableDimension} of ${dimensions.states}; uncontrollable modes ${list(structure.uncontrollableModes)})`}`);

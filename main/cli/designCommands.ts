@@ -1,6 +1,6 @@
 /** `loopwright design` and `loopwright validate`: the project pipeline on a project file. */
 import { evaluateProject, loadProjectText, type DesignRunResult, type VariantResult } from "../../shared-engine/project";
-import { formatComplex, formatReal } from "../../shared-engine/format";
+import { formatComplex, formatCount, formatReal } from "../../shared-engine/format";
 import { describeOptions, parseArgs, type OptionSpec } from "./args";
 import { EXIT, usageError, type CliIo } from "./io";
 import type { Command } from "./commands";
@@ -42,7 +42,7 @@ export function formatVariant(v: VariantResult): string {
       v.plant.controllable ? "controllable" : v.plant.stabilizable ? "stabilizable (not controllable)" : "NOT stabilizable",
       v.plant.observable ? "observable" : v.plant.detectable ? "detectable (not observable)" : "NOT detectable",
     ];
-    lines.push(`  plant: ${d.states} states, ${d.inputs} inputs, ${d.outputs} outputs, ${d.disturbances} disturbances; ${v.plant.sampleTime === null ? "continuous" : `sampled at ${v.plant.sampleTime} s`}; ${flags.join(", ")}`);
+    lines.push(`  plant: ${formatCount(d.states, "state")}, ${formatCount(d.inputs, "input")}, ${formatCount(d.outputs, "output")}, ${formatCount(d.disturbances, "disturbance")}; ${v.plant.sampleTime === null ? "continuous" : `sampled at ${v.plant.sampleTime} s`}; ${flags.join(", ")}`);
     lines.push(`  plant poles: ${v.plant.poles.map((p) => formatComplex(p, 5)).join(", ")}`);
     const op = v.plant.operatingPoint;
     if (op) {

@@ -57,6 +57,13 @@ describe("loopwright analyze", () => {
     expect(r.out).toMatch(/Modal coupling/);
   });
 
+  it("counts the signals in singular and plural", async () => {
+    const lag = await cli(["analyze", "p.json", "--plant", "lag"]);
+    expect(lag.out).toMatch(/ 2 states, 1 input, 1 output, 0 disturbances; continuous/);
+    const pair = await cli(["analyze", "p.json", "--plant", "pair"]);
+    expect(pair.out).toMatch(/ 2 states, 2 inputs, 2 outputs, 0 disturbances; continuous/);
+  });
+
   it("names the unstable uncontrollable mode of a plant that is not stabilizable", async () => {
     const r = await cli(["analyze", "p.json", "--plant", "stuck"]);
     expect(r.code).toBe(0);
