@@ -1,8 +1,9 @@
 /**
- * A/B timing: the routines of a reference copy of linalg/ (path in LW_AB_BASE) against the
+ * A/B timing: the routines of a reference copy of linalg/ (module URL in LW_AB_BASE) against the
  * working tree, interleaved in one process so machine load hits both alike. Prints the best
- * (minimum) per-call time of each over several rounds and the ratio new/base.
- *   LW_AB_BASE=/path/to/old/shared-engine/linalg npx tsx test/bench/ab.ts [ops] [sizes]
+ * (minimum) per-call time of each over several rounds and the ratio new/base. Run it through
+ * scripts/bench-ab.mjs, which bundles both sides and runs them with plain Node:
+ *   npm run bench:ab -- HEAD qz,expm 10,20,50
  */
 import { Matrix } from "ml-matrix";
 import * as current from "../../shared-engine/linalg";
@@ -10,7 +11,7 @@ import { randomMatrix, seededRandom } from "./harness";
 
 type Linalg = typeof current;
 const basePath = process.env.LW_AB_BASE;
-if (!basePath) { console.error("set LW_AB_BASE to the index.ts of a reference linalg/ copy"); process.exit(2); }
+if (!basePath) { console.error("run through `npm run bench:ab -- BASE` (scripts/bench-ab.mjs), which sets LW_AB_BASE"); process.exit(2); }
 const base = (await import(basePath)) as Linalg;
 const which = (process.argv[2] ?? "schur,qz,expm,lyap").split(",");
 const sizes = (process.argv[3] ?? "10,20,50,100").split(",").map(Number);
