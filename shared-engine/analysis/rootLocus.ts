@@ -3,11 +3,21 @@
  * transfer L(s) = c(sI − A)⁻¹b + d as the gain k runs from 0 to a maximum, traced as smooth
  * branches, with the classical construction data (asymptotes, break points, stability-boundary
  * crossings) computed from the model.
+ *
+ * The checks of a request and its options live in `rootLocusOptions.ts`, the construction data
+ * (asymptotes, break points, crossings) in `locusConstruction.ts`, the loop evaluated at one point
+ * (and `gainAtPoint`) in `loopEvaluation.ts`; this file traces the branches. `gainAtPoint` and
+ * `RootLocusOptions` are re-exported so that `analysis/rootLocus` stays their import path.
  */
 import { EngineError } from "../errors";
 import { eigenvalues, type Complex } from "../linalg";
 import { sisoZerosAndGain, type StateSpace } from "../model";
+import { dist, findBreakPoints, findCrossings, locusAsymptotes } from "./locusConstruction";
 import { DEFAULT_TRACE_OPTIONS, matchPoles, tracePoles } from "./poleTracker";
+import { checkRootLocusRequest, type RootLocusOptions } from "./rootLocusOptions";
+
+export { gainAtPoint } from "./loopEvaluation";
+export type { RootLocusOptions } from "./rootLocusOptions";
 
 export interface RootLocus {
   /** Gains k (negative when negativeGain), starting at 0, increasing in |k|. */
@@ -27,20 +37,6 @@ export interface RootLocus {
   notes: string[];
 }
 
-export interface RootLocusOptions {
-  negativeGain?: boolean;
-  /** Largest |k|; default: where every finite zero has a pole within 1 % of the scale and the
-   * other poles are 3 scales from the centroid. */
-  maxGain?: number;
-  /** Least number of gains (points per branch); default 200. */
-  pointsPerBranch?: number;
-  /** Checked between eigenvalue evaluations; returning true stops with kind "cancelled". */
-  isCancelled?: () => boolean;
-  /** Fraction done in [0, 1], non-decreasing: tracing up to 0.8, then break points and crossings. */
-  onProgress?: (fraction: number) => void;
-}
-
-const MAX_CROSSING_BISECTIONS = 200;
 const MAX_GAIN_DECADES = 40;
 
 /**
@@ -71,21 +67,7 @@ const MAX_GAIN_DECADES = 40;
  */
 export function rootLocus(L: StateSpace, options: RootLocusOptions = {}): RootLocus {
   const n = L.A.rows;
-  if (L.B.columns !== 1 || L.C.rows !== 1) {
-    throw new EngineError("invalid-argument", `the root locus needs a single-input single-output loop (this model has ${L.B.columns} inputs and ${L.C.rows} outputs)`, {
-      inputs: L.B.columns,
-      outputs: L.C.rows,
-    });
-  }
-  if (n === 0) throw new EngineError("invalid-argument", "the loop has no states: a static gain has no root locus", {});
-  const negativeGain = options.negativeGain ?? false;
-  const points = options.pointsPerBranch ?? 200;
-  if (!Number.isInteger(points) || points < 2 || points > 100_000) {
-    throw new EngineError("invalid-argument", `pointsPerBranch must be an integer from 2 to 100000, not ${points}`, { argument: "pointsPerBranch" });
-  }
-  if (options.maxGain !== undefined && !(Number.isFinite(options.maxGain) && options.maxGain > 0)) {
-    throw new EngineError("invalid-argument", `maxGain must be a finite positive number (|k| at the end of the locus), not ${options.maxGain}`, { argument: "maxGain" });
-  }
+  const { negativeGain, points } = checkRootLocusRequest(L, options);
   const b = L.B.getColumn(0);
   const c = L.C.getRow(0);
   const d = L.D.get(0, 0);
@@ -105,13 +87,8 @@ export function rootLocus(L: StateSpace, options: RootLocusOptions = {}): RootLo
   };
 
   // Asymptotes: the angle rule depends on the sign of k·g (g the high-frequency gain).
-  const effectiveNegative = sign * Math.sign(highFrequencyGain) < 0;
-  const asymptotes = { centroid: null as number | null, anglesDeg: [] as number[] };
-  if (relativeDegree > 0) {
-    const sum = poles.reduce((s, p) => s + p.re, 0) - zeros.reduce((s, z) => s + z.re, 0);
-    asymptotes.centroid = sum / relativeDegree;
-    asymptotes.anglesDeg = Array.from({ length: relativeDegree }, (_, q) => (effectiveNegative ? (q * 360) / relativeDegree : ((2 * q + 1) * 180) / relativeDegree));
-  } else notes.push("relative degree 0: every branch ends at a finite zero, no asymptotes");
+  const asymptotes = locusAsymptotes(poles, zeros, relativeDegree, sign * Math.sign(highFrequencyGain) < 0);
+  if (relativeDegree <= 0) notes.push("relative degree 0: every branch ends at a finite zero, no asymptotes");
 
   // Gain range. 1 + k·d = 0 sends poles to infinity: stop just before it.
   const k0 = Math.pow(scale, relativeDegree) / Math.abs(highFrequencyGain);
@@ -159,35 +136,8 @@ export function rootLocus(L: StateSpace, options: RootLocusOptions = {}): RootLo
   };
 }
 
-/**
- * Computes: k = −1/L(s) for a point s of the complex plane (the gain that would put a
- *   closed-loop pole at s), returned as its real part `gain`, and `onLocusError` =
- *   |Im k|/|k|, the sine of the angle by which s misses the angle condition (0 on the locus
- *   of positive or negative gain).
- * Requires: SISO model; s finite and not a zero of L. At an open-loop pole the gain is 0.
- * Method: one complex LU solve of (sI − A)x = b with partial pivoting; L = c x + d.
- * Cost: ≈ (8/3)n³ real flops. Accuracy: backward stable solve; relative error ≈ κ(sI − A)·ε.
- * Errors: "invalid-argument" (not SISO; s is a zero of L), "non-finite" (s not finite).
- * Example: for 1/(s(s+1)(s+2)) at s = j√2: gain 6, onLocusError < 1e-15.
- */
-export function gainAtPoint(L: StateSpace, s: Complex): { gain: number; onLocusError: number } {
-  if (L.B.columns !== 1 || L.C.rows !== 1) {
-    throw new EngineError("invalid-argument", `gainAtPoint needs a single-input single-output loop (this model has ${L.B.columns} inputs and ${L.C.rows} outputs)`, {});
-  }
-  if (!s || !Number.isFinite(s.re) || !Number.isFinite(s.im)) {
-    throw new EngineError("non-finite", `s must be a finite complex number {re, im}, not ${JSON.stringify(s)}`, { argument: "s" });
-  }
-  const value = evaluateLoop(L, s);
-  if (value === null) return { gain: 0, onLocusError: 0 }; // s is an open-loop pole: k = 0
-  const mag2 = value.re * value.re + value.im * value.im;
-  if (mag2 === 0) {
-    throw new EngineError("invalid-argument", `s = ${s.re}${s.im >= 0 ? "+" : "−"}${Math.abs(s.im)}j is a zero of the loop: no finite gain puts a pole there`, { argument: "s" });
-  }
-  // k = −1/L = −conj(L)/|L|²
-  const k = { re: -value.re / mag2, im: value.im / mag2 };
-  return { gain: k.re, onLocusError: Math.abs(k.im) / Math.hypot(k.re, k.im) };
-}
-
+// Length scale of the plot: the spread of the poles and zeros about their mean (their largest
+// magnitude, or 1, when they coincide); at least 1 when sampled.
 function locusScale(poles: Complex[], zeros: Complex[], sampled: boolean): number {
   const all = [...poles, ...zeros];
   const mean = all.reduce((s, p) => ({ re: s.re + p.re / all.length, im: s.im + p.im / all.length }), { re: 0, im: 0 });
@@ -224,8 +174,6 @@ function autoMaxGain(closedLoop: (k: number) => Complex[], sign: number, k0: num
   return k / 10;
 }
 
-const dist = (a: Complex, b: Complex): number => Math.hypot(a.re - b.re, a.im - b.im);
-
 // Doubles the point count by inserting midpoint gains (matched to the interpolated branch
 // position) until there are at least `points` gains.
 function densify(gains: number[], branches: Complex[][], points: number, closedLoop: (k: number) => Complex[]): { gains: number[]; branches: Complex[][] } {
@@ -243,207 +191,4 @@ function densify(gains: number[], branches: Complex[][], points: number, closedL
     branches = newBranches;
   }
   return { gains, branches };
-}
-
-function findCrossings(gains: number[], branches: Complex[][], closedLoop: (k: number) => Complex[], sampled: boolean): { point: Complex; gain: number }[] {
-  const boundary = (p: Complex): number => (sampled ? Math.hypot(p.re, p.im) - 1 : p.re);
-  const out: { point: Complex; gain: number }[] = [];
-  for (const branch of branches) {
-    for (let k = 0; k + 1 < gains.length; k++) {
-      const fa = boundary(branch[k]!);
-      const fb = boundary(branch[k + 1]!);
-      if (!(fa * fb < 0)) continue;
-      let lo = gains[k]!;
-      let hi = gains[k + 1]!;
-      let pLo = branch[k]!;
-      let pHi = branch[k + 1]!;
-      let point = fa < 0 ? pLo : pHi;
-      for (let it = 0; it < MAX_CROSSING_BISECTIONS; it++) {
-        const mid = (lo + hi) / 2;
-        if (mid === lo || mid === hi || Math.abs(hi - lo) <= 1e-13 * Math.abs(mid)) break;
-        const guess = { re: (pLo.re + pHi.re) / 2, im: (pLo.im + pHi.im) / 2 };
-        const candidates = closedLoop(mid);
-        let best = candidates[0]!;
-        for (const q of candidates) if (dist(q, guess) < dist(best, guess)) best = q;
-        point = best;
-        if (boundary(best) * fa > 0) {
-          lo = mid;
-          pLo = best;
-        } else {
-          hi = mid;
-          pHi = best;
-        }
-      }
-      out.push({ point, gain: (lo + hi) / 2 });
-    }
-  }
-  return out;
-}
-
-// Real-axis break points: sign changes of L'(x) between the real poles and zeros, refined by
-// bisection, kept when K(x) = −1/L(x) has the sign of the locus (so x lies on it).
-function findBreakPoints(L: StateSpace, poles: Complex[], zeros: Complex[], scale: number, sign: number): { point: Complex; gain: number }[] {
-  const realTol = 1e-6 * scale;
-  const all = [...poles, ...zeros];
-  const reals = all.filter((p) => Math.abs(p.im) <= realTol).map((p) => p.re);
-  const lo = Math.min(...all.map((p) => p.re)) - 5 * scale;
-  const hi = Math.max(...all.map((p) => p.re)) + 5 * scale;
-  const edges = [lo, ...reals, hi].sort((a, b) => a - b);
-  const derivative = (x: number): number | null => realLoopAndDerivative(L, x)?.derivative ?? null;
-  const out: { point: Complex; gain: number }[] = [];
-  const SAMPLES = 64;
-  for (let e = 0; e + 1 < edges.length; e++) {
-    const a = edges[e]!;
-    const b = edges[e + 1]!;
-    if (!(b - a > 2 * realTol)) continue;
-    let xPrev = NaN;
-    let gPrev: number | null = null;
-    for (let i = 0; i < SAMPLES; i++) {
-      const x = a + ((b - a) * (i + 0.5)) / SAMPLES;
-      const g = derivative(x);
-      if (g !== null && gPrev !== null && g * gPrev < 0) {
-        const root = bisectRoot(derivative, xPrev, x, gPrev, scale);
-        const at = realLoopAndDerivative(L, root);
-        const nearSingular = all.some((p) => Math.hypot(p.re - root, p.im) <= 1e-8 * scale);
-        if (at !== null && at.value !== 0 && !nearSingular) {
-          const gain = -1 / at.value;
-          if (gain * sign > 0 && !out.some((q) => Math.abs(q.point.re - root) <= 1e-9 * scale)) out.push({ point: { re: root, im: 0 }, gain });
-        }
-      }
-      if (g !== null) {
-        xPrev = x;
-        gPrev = g;
-      }
-    }
-  }
-  return out;
-}
-
-function bisectRoot(f: (x: number) => number | null, a: number, b: number, fa: number, scale: number): number {
-  for (let it = 0; it < 200; it++) {
-    const mid = (a + b) / 2;
-    if (mid === a || mid === b || b - a <= 1e-15 * Math.max(scale, Math.abs(mid))) return mid;
-    const fm = f(mid);
-    if (fm === null || fm === 0) return mid;
-    if (fm * fa > 0) {
-      a = mid;
-      fa = fm;
-    } else b = mid;
-  }
-  return (a + b) / 2;
-}
-
-/** L(s) = c(sI − A)⁻¹b + d at complex s, or null when sI − A is exactly singular (s a pole). */
-function evaluateLoop(L: StateSpace, s: Complex): Complex | null {
-  const n = L.A.rows;
-  const re = new Float64Array(n * n);
-  const im = new Float64Array(n * n);
-  const xr = new Float64Array(n);
-  const xi = new Float64Array(n);
-  for (let i = 0; i < n; i++) {
-    for (let j = 0; j < n; j++) re[i * n + j] = (i === j ? s.re : 0) - L.A.get(i, j);
-    im[i * n + i] = s.im;
-    xr[i] = L.B.get(i, 0);
-  }
-  // Gaussian elimination with partial pivoting (Golub & Van Loan, Alg. 3.4.1) in complex form.
-  for (let k = 0; k < n; k++) {
-    let piv = k;
-    for (let i = k + 1; i < n; i++) if (Math.hypot(re[i * n + k]!, im[i * n + k]!) > Math.hypot(re[piv * n + k]!, im[piv * n + k]!)) piv = i;
-    if (re[piv * n + k] === 0 && im[piv * n + k] === 0) return null;
-    if (piv !== k) {
-      for (let j = 0; j < n; j++) {
-        swap(re, k * n + j, piv * n + j);
-        swap(im, k * n + j, piv * n + j);
-      }
-      swap(xr, k, piv);
-      swap(xi, k, piv);
-    }
-    const pr = re[k * n + k]!;
-    const pi = im[k * n + k]!;
-    const p2 = pr * pr + pi * pi;
-    for (let i = k + 1; i < n; i++) {
-      const ar = re[i * n + k]!;
-      const ai = im[i * n + k]!;
-      const lr = (ar * pr + ai * pi) / p2;
-      const li = (ai * pr - ar * pi) / p2;
-      if (lr === 0 && li === 0) continue;
-      for (let j = k + 1; j < n; j++) {
-        const br = re[k * n + j]!;
-        const bi = im[k * n + j]!;
-        re[i * n + j] -= lr * br - li * bi;
-        im[i * n + j] -= lr * bi + li * br;
-      }
-      const yr = xr[k]!;
-      const yi = xi[k]!;
-      xr[i] -= lr * yr - li * yi;
-      xi[i] -= lr * yi + li * yr;
-    }
-  }
-  for (let k = n - 1; k >= 0; k--) {
-    let sr = xr[k]!;
-    let si = xi[k]!;
-    for (let j = k + 1; j < n; j++) {
-      sr -= re[k * n + j]! * xr[j]! - im[k * n + j]! * xi[j]!;
-      si -= re[k * n + j]! * xi[j]! + im[k * n + j]! * xr[j]!;
-    }
-    const pr = re[k * n + k]!;
-    const pi = im[k * n + k]!;
-    const p2 = pr * pr + pi * pi;
-    xr[k] = (sr * pr + si * pi) / p2;
-    xi[k] = (si * pr - sr * pi) / p2;
-  }
-  let vr = L.D.get(0, 0);
-  let vi = 0;
-  for (let j = 0; j < n; j++) {
-    vr += L.C.get(0, j) * xr[j]!;
-    vi += L.C.get(0, j) * xi[j]!;
-  }
-  return Number.isFinite(vr) && Number.isFinite(vi) ? { re: vr, im: vi } : null;
-}
-
-/** L(x) and L'(x) = −c(xI − A)⁻²b at real x (one LU, two solves); null when singular. */
-function realLoopAndDerivative(L: StateSpace, x: number): { value: number; derivative: number } | null {
-  const n = L.A.rows;
-  const M = new Float64Array(n * n);
-  for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) M[i * n + j] = (i === j ? x : 0) - L.A.get(i, j);
-  const perm = Int32Array.from({ length: n }, (_, i) => i);
-  for (let k = 0; k < n; k++) {
-    let piv = k;
-    for (let i = k + 1; i < n; i++) if (Math.abs(M[i * n + k]!) > Math.abs(M[piv * n + k]!)) piv = i;
-    if (M[piv * n + k] === 0) return null;
-    if (piv !== k) {
-      for (let j = 0; j < n; j++) swap(M, k * n + j, piv * n + j);
-      const t = perm[k]!;
-      perm[k] = perm[piv]!;
-      perm[piv] = t;
-    }
-    for (let i = k + 1; i < n; i++) {
-      const l = (M[i * n + k]! /= M[k * n + k]!);
-      if (l !== 0) for (let j = k + 1; j < n; j++) M[i * n + j] -= l * M[k * n + j]!;
-    }
-  }
-  const solve = (rhs: Float64Array): Float64Array => {
-    const y = Float64Array.from(perm, (p) => rhs[p]!);
-    for (let i = 0; i < n; i++) for (let j = 0; j < i; j++) y[i] -= M[i * n + j]! * y[j]!;
-    for (let i = n - 1; i >= 0; i--) {
-      for (let j = i + 1; j < n; j++) y[i] -= M[i * n + j]! * y[j]!;
-      y[i] /= M[i * n + i]!;
-    }
-    return y;
-  };
-  const y = solve(Float64Array.from({ length: n }, (_, i) => L.B.get(i, 0)));
-  const z = solve(y);
-  let value = L.D.get(0, 0);
-  let derivative = 0;
-  for (let j = 0; j < n; j++) {
-    value += L.C.get(0, j) * y[j]!;
-    derivative -= L.C.get(0, j) * z[j]!;
-  }
-  return Number.isFinite(value) && Number.isFinite(derivative) ? { value, derivative } : null;
-}
-
-function swap(a: Float64Array, i: number, j: number): void {
-  const t = a[i]!;
-  a[i] = a[j]!;
-  a[j] = t;
 }

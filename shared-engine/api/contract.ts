@@ -10,13 +10,18 @@ import type { ErrorPayload } from "../errors";
 import type { PlantSpec, ProjectFile, RequirementSpec, SignOffSpec, VariantSpec } from "../project/format";
 import type { DesignRunResult, VariantResult } from "../project/result";
 
-import type * as T from "./contractTypes";
+import type * as MD from "./modelContractTypes";
+import type * as AN from "./analysisContractTypes";
+import type * as DS from "./designContractTypes";
 import type * as NL from "./nonlinearContractTypes";
 import type * as SV from "./servoContractTypes";
 import type * as SIM from "./simulationContractTypes";
 
 export type { PlantSpec, ProjectFile, RequirementSpec, SignOffSpec, VariantSpec, DesignRunResult, VariantResult };
 export type * from "./contractTypes";
+export type * from "./modelContractTypes";
+export type * from "./analysisContractTypes";
+export type * from "./designContractTypes";
 export type * from "./nonlinearContractTypes";
 export type * from "./servoContractTypes";
 export type * from "./simulationContractTypes";
@@ -62,47 +67,47 @@ export interface EngineMethods {
     result: DesignRunResult;
   };
   /** Realizes a transfer function (SISO or a transfer matrix) as a state-space model. */
-  "model.fromTransferFunction": { params: T.FromTransferFunctionParams; result: T.ModelResult };
+  "model.fromTransferFunction": { params: MD.FromTransferFunctionParams; result: MD.ModelResult };
   /** Realizes zeros, poles and gain as a series of first- and second-order sections. */
-  "model.fromZeroPoleGain": { params: T.FromZeroPoleGainParams; result: T.ModelResult };
+  "model.fromZeroPoleGain": { params: MD.FromZeroPoleGainParams; result: MD.ModelResult };
   /** Samples a continuous model: zero-order hold, or Tustin with optional prewarping. */
-  "model.discretize": { params: T.DiscretizeParams; result: T.DiscretizeResult };
+  "model.discretize": { params: MD.DiscretizeParams; result: MD.DiscretizeResult };
   /** Poles, stability and DC gain. */
-  "analysis.poles": { params: T.ModelParams; result: T.PolesResult };
+  "analysis.poles": { params: AN.ModelParams; result: AN.PolesResult };
   /** Controllability/observability with the failing modes, stabilizability, detectability. */
-  "analysis.structure": { params: T.StructureParams; result: T.StructureResult };
+  "analysis.structure": { params: AN.StructureParams; result: AN.StructureResult };
   /** Transmission zeros (finite, infinite count, decoupling zeros) of a channel selection. */
-  "analysis.zeros": { params: T.ZerosParams; result: T.ZerosResult };
+  "analysis.zeros": { params: AN.ZerosParams; result: AN.ZerosResult };
   /** Real modal (block-diagonal) form and the mode/state coupling report. */
-  "analysis.modalForm": { params: T.ModelParams; result: T.ModalFormResult };
+  "analysis.modalForm": { params: AN.ModelParams; result: AN.ModalFormResult };
   /** Controllability and observability Gramians and Hankel singular values (stable models). */
-  "analysis.gramians": { params: T.ModelParams; result: T.GramiansResult };
+  "analysis.gramians": { params: AN.ModelParams; result: AN.GramiansResult };
   /** G(jω) (or G(e^{jωT})) on a given or automatic grid; null where unbounded. */
-  "analysis.frequencyResponse": { params: T.FrequencyResponseParams; result: T.FrequencyResponseResult };
+  "analysis.frequencyResponse": { params: AN.FrequencyResponseParams; result: AN.FrequencyResponseResult };
   /** Gain, phase, delay and disk margins and sensitivity peaks of a SISO loop. */
-  "analysis.margins": { params: T.MarginsParams; result: T.MarginsResult };
+  "analysis.margins": { params: AN.MarginsParams; result: AN.MarginsResult };
   /** Step response and its metrics per output. */
-  "analysis.step": { params: T.StepParams; result: T.StepResult };
+  "analysis.step": { params: AN.StepParams; result: AN.StepResult };
   /** Response to a given input sequence u[k][j] (and optional disturbances, initial state). */
   "analysis.simulate": { params: SIM.SimulateParams; result: SIM.SimulationResult };
   /** Free response from an initial state x0 (no input). */
   "analysis.initial": { params: SIM.InitialParams; result: SIM.SimulationResult };
   /** Root locus of a SISO loop (or one channel): branches, asymptotes, break points, crossings. */
-  "analysis.rootLocus": { params: T.RootLocusParams; result: T.RootLocusResult };
+  "analysis.rootLocus": { params: AN.RootLocusParams; result: AN.RootLocusResult };
   /** State-feedback gain K with eig(A − BK) at the requested poles. */
-  "design.placePoles": { params: T.PlacePolesParams; result: T.PlacePolesResult };
+  "design.placePoles": { params: DS.PlacePolesParams; result: DS.PlacePolesResult };
   /** Observer gain L with eig(A − LC) at the requested poles. */
-  "design.observerPoles": { params: T.ObserverPolesParams; result: T.ObserverPolesResult };
+  "design.observerPoles": { params: DS.ObserverPolesParams; result: DS.ObserverPolesResult };
   /** Continuous or discrete algebraic Riccati equation with optional cross weight N. */
-  "design.riccati": { params: T.RiccatiParams; result: T.RiccatiResultJson };
+  "design.riccati": { params: DS.RiccatiParams; result: DS.RiccatiResultJson };
   /** LQR gain, Riccati solution and (continuous, one input) loop margins. */
-  "design.lqr": { params: T.LqrParams; result: T.LqrResultJson };
+  "design.lqr": { params: DS.LqrParams; result: DS.LqrResultJson };
   /** Steady-state Kalman filter (continuous, or discrete predictor/current form). */
-  "design.kalman": { params: T.KalmanParams; result: T.KalmanResultJson };
+  "design.kalman": { params: DS.KalmanParams; result: DS.KalmanResultJson };
   /** Diagonal LQR weights from the largest acceptable state and input excursions. */
-  "design.brysonWeights": { params: T.BrysonParams; result: T.BrysonResult };
+  "design.brysonWeights": { params: DS.BrysonParams; result: DS.BrysonResult };
   /** LQR gains and closed-loop poles along R = ρ·R₀ (reports progress, can be cancelled). */
-  "design.lqrSweep": { params: T.LqrSweepParams; result: T.LqrSweepResult };
+  "design.lqrSweep": { params: DS.LqrSweepParams; result: DS.LqrSweepResult };
   /** Integral (servo) gains Kx, Ki by LQR or pole placement, with the servo DC-gain check. */
   "design.integral": { params: SV.IntegralDesignParams; result: SV.IntegralDesignResult };
   /** Reference feedforward N (u = −Kx + N r) with its nominal-model caveat. */

@@ -3,7 +3,8 @@
  * assembly, reduced-order observer) and of the weight and observer-speed loci (types only).
  * Same conventions as `contractTypes.ts`.
  */
-import type { ComplexValue, Diagnostics, FullModelJson, ModelJson, PlacementResultJson } from "./contractTypes";
+import type { ComplexValue, Diagnostics, FullModelJson, ModelJson } from "./contractTypes";
+import type { PlacementResultJson } from "./designContractTypes";
 
 interface IntegralCommon {
   model: ModelJson;

@@ -5,7 +5,7 @@
 import { Matrix } from "ml-matrix";
 import type { Complex } from "../linalg";
 import type { StateSpace } from "../model";
-// As in timeResponse.ts: vanLoan is not re-exported by linalg/index.ts.
+// As in analysis/transitionMatrices.ts: vanLoan is not re-exported by linalg/index.ts.
 import { expmIntegral } from "../linalg/vanLoan";
 
 /**

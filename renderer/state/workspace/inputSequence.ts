@@ -20,7 +20,7 @@ import { parseNumberText } from "./parseMatrixText";
 
 /** Most rows accepted (the bridge's list limit; a longer sequence belongs in a batch job). */
 export const MAX_SEQUENCE_ROWS = 100_000;
-/** Relative tolerance for "a multiple of T": the engine's (timeResponse.ts SAMPLE_ALIGNMENT_TOL). */
+/** Relative tolerance for "a multiple of T": the engine's (analysis/timeGrid.ts SAMPLE_ALIGNMENT_TOL). */
 export const SAMPLE_ALIGNMENT_TOLERANCE = 1e-9;
 
 export type Separator = "\t" | ";" | ",";

@@ -33,7 +33,7 @@ import type {
   StepResult,
   StructureResult,
   ZerosResult,
-} from "../contractTypes";
+} from "../analysisContractTypes";
 import { diagnostics, modelToJson, progressForwarder, throwIfCancelled, type RequestHandler } from "../handlerSupport";
 import {
   ANALYSIS_LIMITS,

@@ -27,7 +27,7 @@ import type {
   PlacePolesResult,
   PlacementResultJson,
   RiccatiResultJson,
-} from "../contractTypes";
+} from "../designContractTypes";
 import { diagnostics, throwIfCancelled, type RequestHandler } from "../handlerSupport";
 import {
   ANALYSIS_LIMITS,

@@ -14,7 +14,7 @@ import {
   type StateSpace,
   type TransferFunction,
 } from "../../model";
-import type { DiscretizeResult, ModelResult } from "../contractTypes";
+import type { DiscretizeResult, ModelResult } from "../modelContractTypes";
 import { diagnostics, modelToJson, type RequestHandler } from "../handlerSupport";
 import {
   ANALYSIS_LIMITS,
