@@ -3,9 +3,9 @@
  * robustness sweep and the per-input margins of multi-input loops. Each section is drawn only
  * when the result has its part; checks are shown with their PASS/FAIL.
  */
-import { PoleZeroMap } from "../plots/PoleZeroMap";
 import { ResponsePlot } from "../plots/ResponsePlot";
 import { channelRows, checkVerdict, disturbanceRows, nonlinearCheckRows, robustnessRows, sweptParameterRows } from "./checkSectionsSheet";
+import { PoleMapFigure } from "./PoleMapFigure";
 import { fullDigits } from "./sheetModel";
 import type { SheetModel } from "./sheetModel";
 import { KeyValues } from "./sheetParts";
@@ -110,16 +110,16 @@ export function RobustnessSection({ model, number }: { model: SheetModel; number
         <tbody>{swept.map((p) => <tr key={p.name}><td className="mono">{p.name}</td><td className="num">{p.nominal}</td><td className="num">{p.percent}</td><td className="num">{p.range}</td><td>{p.unit || "—"}</td></tr>)}</tbody>
       </table>
       <KeyValues rows={robustnessRows(model.input.result, model.variant)} />
-      <div className="lw-sheet-figure">
-        <PoleZeroMap
-          variant="print"
-          width={PLOT_WIDTH}
-          height={380}
-          sampleTime={r.sampleTime}
-          title={`Closed-loop poles over the ${r.samples} parameter samples`}
-          series={[{ name: "Swept closed loop (pole cloud)", poles: r.poleCloud, styleIndex: 0 }, { name: "Nominal design", poles: nominal, styleIndex: 1 }]}
-        />
-      </div>
+      <PoleMapFigure
+        width={PLOT_WIDTH}
+        height={380}
+        zoomHeight={360}
+        sampleTime={r.sampleTime}
+        title={`Closed-loop poles over the ${r.samples} parameter samples`}
+        series={[{ name: "Swept closed loop (pole cloud)", poles: r.poleCloud, styleIndex: 0 }, { name: "Nominal design", poles: nominal, styleIndex: 1 }]}
+        focus={{ poles: [...r.poleCloud, ...nominal] }}
+        subject="the pole cloud"
+      />
       <CheckLine model={model} name="robust-stability" label="Stable over the parameter range" />
     </section>
   );

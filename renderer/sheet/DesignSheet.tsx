@@ -4,11 +4,11 @@
  * HTML, printed by headless Chromium). Plots use their print variant (white, darker lines).
  */
 import { BodePlot } from "../plots/BodePlot";
-import { PoleZeroMap } from "../plots/PoleZeroMap";
 import { ResponsePlot } from "../plots/ResponsePlot";
 import type { PoleZeroSeries } from "../plots/poleZeroModel";
 import { ChannelMarginsTable, DisturbanceSection, NonlinearCheckSection, RobustnessSection } from "./CheckSections";
 import { LimitsTable, NonlinearPlantSection } from "./NonlinearPlantSection";
+import { PoleMapFigure } from "./PoleMapFigure";
 import { KeyValues, MatrixTable, PoleTable } from "./sheetParts";
 import {
   SIGN_OFF_ROLES,
@@ -209,7 +209,7 @@ export function DesignSheet(props: SheetInput) {
         ) : spec.type === "transfer-function" ? (
           <KeyValues rows={[{ term: "Numerator (highest power first)", value: JSON.stringify(spec.numerator) }, { term: "Denominator", value: JSON.stringify(spec.denominator) }]} />
         ) : spec.type === "zero-pole-gain" ? (
-          <KeyValues rows={[{ term: "Zeros", value: JSON.stringify(spec.zeros) }, { term: "Poles", value: JSON.stringify(spec.poles) }, { term: "Gain", value: fullDigits(spec.gain) }]} />
+          <KeyValues rows={[{ term: "Zeros", value: JSON.stringify(spec.zeros) }, { term: "Poles", value: JSON.stringify(spec.poles) }, { term: "Gain", value: typeof spec.gain === "number" ? fullDigits(spec.gain) : JSON.stringify(spec.gain) }]} />
         ) : (
           <NonlinearPlantSection model={model} spec={spec} />
         )}
@@ -256,9 +256,16 @@ export function DesignSheet(props: SheetInput) {
             {result.closedLoopPoles && <PoleTable title="State-feedback loop (with integrators when present)" poles={result.closedLoopPoles} sampleTime={sampleTime} />}
             {result.observerPoles && <PoleTable title="Observer" poles={result.observerPoles} sampleTime={sampleTime} />}
             {pzSeries.length > 0 && (
-              <div className="lw-sheet-figure">
-                <PoleZeroMap variant="print" width={PLOT_WIDTH} height={400} series={pzSeries} sampleTime={sampleTime} title={`Pole-zero map (${sampleTime === null ? "s-plane" : `z-plane, T = ${fullDigits(sampleTime)} s`})`} />
-              </div>
+              <PoleMapFigure
+                width={PLOT_WIDTH}
+                height={400}
+                zoomHeight={360}
+                series={pzSeries}
+                sampleTime={sampleTime}
+                title={`Pole-zero map (${sampleTime === null ? "s-plane" : `z-plane, T = ${fullDigits(sampleTime)} s`})`}
+                focus={{ poles: [...(result.plant?.poles ?? []), ...(result.observerPoles ?? [])], anchors: result.closedLoopPoles ?? result.observerPoles ?? result.plant?.poles ?? [] }}
+                subject={result.closedLoopPoles ? "the closed-loop poles" : "the poles"}
+              />
             )}
           </section>
 
