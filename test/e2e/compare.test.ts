@@ -1,6 +1,7 @@
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import type { BrowserContext, Page } from "playwright-core";
 import type { StaticServer } from "../../scripts/static-server.mjs";
+import { DEMO_PROJECT_NAME } from "../../renderer/db/demoProject";
 import { sampleProject } from "../app/db/sampleProject";
 import { freshProfileDir, launchBrowser, removeProfileDir, screenshotPath, serveRendererBuild, watchPageProblems } from "./helpers";
 
@@ -87,6 +88,25 @@ describe("side-by-side comparison in browser mode", () => {
     await page.locator('[data-revision="3"]').getByRole("button", { name: "Inspect" }).click();
     await page.getByRole("region", { name: "Revision 3 (read-only)" }).waitFor();
     await page.screenshot({ path: screenshotPath("compare-history.png"), fullPage: true });
+    expect(problems).toEqual([]);
+  });
+
+  it("draws the loop at the plant input of all four demo variants on the comparison's Bode plot", async () => {
+    await page.goto(server.url);
+    await page.getByTestId("project-count").filter({ hasText: /project/ }).waitFor();
+    await page.getByRole("link", { name: `Compare and history of ${DEMO_PROJECT_NAME}` }).click();
+    await page.getByTestId("compare-table").waitFor();
+    await expect.poll(() => page.getByTestId("evaluation-status").textContent(), { timeout: 60_000 }).toBe("Designed from revision 1");
+    // The loops come from a second, display-only evaluation after the table.
+    const caption = page.getByTestId("bode-caption");
+    await expect.poll(() => caption.textContent(), { timeout: 60_000 }).toMatch(/^4 of 4 compared loops/);
+    expect(await caption.textContent()).toMatch(/sampled loop stops below its Nyquist frequency/);
+    const bode = page.locator("figure.lw-plot").filter({ has: page.locator(".lw-plot-title", { hasText: "Loop at the plant input" }) });
+    expect(await bode.locator(".lw-legend > g").count()).toBe(4);
+    expect(await bode.locator(".lw-panel-magnitude .lw-series-line").count()).toBe(4);
+    expect(await page.getByTestId("bode-missing").count()).toBe(0);
+    await page.screenshot({ path: screenshotPath("compare-demo.png"), fullPage: true });
+    await page.locator(".compare-bode").screenshot({ path: screenshotPath("compare-demo-bode.png") });
     expect(problems).toEqual([]);
   });
 });

@@ -2,12 +2,16 @@
  * State of the project tools screen (comparison, variants and requirements, history), in plain
  * TypeScript: commands in, immutable snapshots out. Every document change goes through `apply`,
  * which saves a new revision based on the revision the screen shows; a stale base comes back as
- * a conflict, which is shown and answered by reloading (never by overwriting).
+ * a conflict, which is shown and answered by reloading (never by overwriting). After each
+ * evaluation (the table) a second, display-only evaluation computes the compared variants' loops
+ * at the plant input for the Bode plot (`loops`, planned by comparisonLoops.ts); a newer
+ * selection, evaluation or `dispose` cancels it.
  */
 import { isEngineError } from "../../../shared-engine/errors";
 import type { EngineBridge, ProjectFile, VariantResult } from "../../../shared-engine/api/contract";
 import type { DocumentStore, RevisionSummary, StoredDocument } from "../../db";
 import { restoreRevision } from "../../db";
+import { loopsFromDisplayRun, planComparisonLoops, type MissingLoop } from "./comparisonLoops";
 import { normaliseBaseline } from "./variantCommands";
 
 /** The comparison shows at least two and at most four variants side by side. */
@@ -21,12 +25,33 @@ export interface ProjectToolsState {
   /** Variant ids chosen for the comparison, in project order. */
   selected: readonly string[];
   evaluation: { status: "idle" | "running" | "done" | "failed"; revision: number; results: Readonly<Record<string, VariantResult>>; error: string | null };
+  /**
+   * The loops at the plant input drawn on the comparison's Bode plot: a second, display-only
+   * evaluation of the compared variants (see comparisonLoops.ts), run after `evaluation` and for
+   * the revision and selection recorded here. The comparison table never reads it.
+   */
+  loops: ComparisonLoopsState;
   history: readonly RevisionSummary[];
   /** A revision opened read-only in the history view. */
   inspected: StoredDocument | null;
   busy: boolean;
   notice: { kind: "info" | "error" | "conflict"; text: string } | null;
 }
+
+export interface ComparisonLoopsState {
+  status: "idle" | "running" | "done" | "failed";
+  /** Revision of the evaluation the loops were planned from, and the selection they show. */
+  revision: number;
+  selected: readonly string[];
+  /** Shared frequency range of the plot (rad/s), null when nothing is drawn. */
+  range: readonly [number, number] | null;
+  /** Display result per variant with a loop (its `bode` is the loop at the plant input). */
+  results: Readonly<Record<string, VariantResult>>;
+  missing: readonly MissingLoop[];
+  error: string | null;
+}
+
+const NO_LOOPS: ComparisonLoopsState = { status: "idle", revision: -1, selected: [], range: null, results: {}, missing: [], error: null };
 
 export interface ProjectToolsStore {
   getState(): ProjectToolsState;
@@ -36,6 +61,12 @@ export interface ProjectToolsStore {
   reload(): Promise<void>;
   toggleSelected(variantId: string): void;
   evaluate(): Promise<void>;
+  /**
+   * Evaluates the loops of the compared variants for the Bode plot (after `evaluate`, and again
+   * when the selection changes). A newer call, a new evaluation or `dispose` cancels the one in
+   * flight, whose late answer is ignored.
+   */
+  evaluateLoops(): Promise<void>;
   /** Saves `change(document)` as a new revision with `message`. Returns whether it was saved. */
   apply(change: (document: ProjectFile) => ProjectFile, message: string): Promise<boolean>;
   inspect(revision: number | null): Promise<void>;
@@ -60,6 +91,7 @@ export function createProjectToolsStore(deps: ProjectToolsDeps): ProjectToolsSto
     stored: null,
     selected: [],
     evaluation: { status: "idle", revision: -1, results: {}, error: null },
+    loops: NO_LOOPS,
     history: [],
     inspected: null,
     busy: false,
@@ -68,6 +100,11 @@ export function createProjectToolsStore(deps: ProjectToolsDeps): ProjectToolsSto
   const listeners = new Set<() => void>();
   let stopSubscription: (() => void) | null = null;
   let evaluationToken = 0;
+  // The document the shown evaluation was computed from (a revision from another window is
+  // shown without re-evaluating, so the stored document may be newer than the results).
+  let evaluatedDocument: ProjectFile | null = null;
+  let loopsToken = 0;
+  let loopsController: AbortController | null = null;
   // The newest revision this screen knows of, set synchronously when its own save returns, so
   // the store's echo of that save is not announced as coming from another window.
   let knownRevision = 0;
@@ -82,6 +119,13 @@ export function createProjectToolsStore(deps: ProjectToolsDeps): ProjectToolsSto
     const ids = document.variants.map((v) => v.id);
     const kept = ids.filter((id) => previous.includes(id)).slice(0, MAX_COMPARED);
     return kept.length >= Math.min(MIN_COMPARED, ids.length) ? kept : ids.slice(0, MAX_COMPARED);
+  }
+
+  /** Cancels the loop evaluation in flight (its answer, should it still arrive, is ignored). */
+  function cancelLoops(): void {
+    loopsToken += 1;
+    loopsController?.abort();
+    loopsController = null;
   }
 
   async function show(stored: StoredDocument): Promise<void> {
@@ -122,6 +166,7 @@ export function createProjectToolsStore(deps: ProjectToolsDeps): ProjectToolsSto
     },
 
     dispose() {
+      cancelLoops();
       stopSubscription?.();
       stopSubscription = null;
       listeners.clear();
@@ -149,22 +194,60 @@ export function createProjectToolsStore(deps: ProjectToolsDeps): ProjectToolsSto
       }
       const wanted = on ? state.selected.filter((id) => id !== variantId) : [...state.selected, variantId];
       set({ selected: state.stored.document.variants.map((v) => v.id).filter((id) => wanted.includes(id)) });
+      if (state.evaluation.status === "done") void store.evaluateLoops();
     },
 
     async evaluate() {
       const stored = state.stored;
       if (!stored || stored.document.variants.length === 0) return;
       const token = ++evaluationToken;
-      set({ evaluation: { ...state.evaluation, status: "running", error: null } });
+      // The loops belong to the evaluation being replaced: stop them now rather than let them
+      // compete with the new evaluation for the engine.
+      cancelLoops();
+      set({ evaluation: { ...state.evaluation, status: "running", error: null }, loops: NO_LOOPS });
       try {
         const run = await deps.bridge.request("project.evaluate", { project: stored.document });
         if (token !== evaluationToken) return;
         const results: Record<string, VariantResult> = {};
         for (const r of run.variants) results[r.id] = r;
+        evaluatedDocument = stored.document;
         set({ evaluation: { status: "done", revision: stored.revision, results, error: null } });
       } catch (error) {
         if (token !== evaluationToken) return;
+        evaluatedDocument = null;
         set({ evaluation: { status: "failed", revision: stored.revision, results: {}, error: messageOf(error) } });
+        return;
+      }
+      // The table is shown by now; the loops for the plot follow.
+      void store.evaluateLoops();
+    },
+
+    async evaluateLoops() {
+      cancelLoops();
+      const evaluation = state.evaluation;
+      const document = evaluatedDocument;
+      if (!document || evaluation.status !== "done") return;
+      const token = loopsToken;
+      const selected = state.selected;
+      const plan = planComparisonLoops(document, selected, evaluation.results);
+      const base = { revision: evaluation.revision, selected, range: plan.range };
+      if (!plan.project) {
+        set({ loops: { ...base, status: "done", results: {}, missing: plan.missing, error: null } });
+        return;
+      }
+      const controller = new AbortController();
+      loopsController = controller;
+      set({ loops: { ...base, status: "running", results: {}, missing: [], error: null } });
+      try {
+        const run = await deps.bridge.request("project.evaluate", { project: plan.project }, { signal: controller.signal });
+        if (token !== loopsToken) return;
+        loopsController = null;
+        const { loops, missing } = loopsFromDisplayRun(plan, run);
+        set({ loops: { ...base, status: "done", results: loops, missing, error: null } });
+      } catch (error) {
+        if (token !== loopsToken) return;
+        loopsController = null;
+        set({ loops: { ...base, status: "failed", results: {}, missing: plan.missing, error: messageOf(error) } });
       }
     },
 
