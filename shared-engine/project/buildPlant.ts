@@ -11,10 +11,12 @@ import {
   createZeroPoleGain,
   realizeTransferFunction,
   realizeZeroPoleGain,
+  realizeZeroPoleGainMatrix,
   stateSpaceFromMatrices,
   type SignalNames,
   type StateSpace,
   type TransferFunction,
+  type ZeroPoleGain,
 } from "../model";
 import {
   compileNonlinearPlant,
@@ -97,6 +99,23 @@ export function buildNonlinearPlant(spec: NonlinearModelSpec, path: string): Bui
   return { plant, point, linearization: lin, request: spec.operatingPoint };
 }
 
+/**
+ * Computes: the StateSpace model (A n×n, B n×m, C p×n, D p×m, F, E) of a plant's model spec,
+ *   with the spec's signal names and units (state names only where they fit the realization).
+ * Requires: a validated spec (validateProject).
+ * Method: state-space: createStateSpace; transfer function (SISO or [output][input] grid):
+ *   realizeTransferFunction (companion blocks per input column, balanced); zero-pole-gain SISO:
+ *   realizeZeroPoleGain (cascade of real second-order sections); zero-pole-gain grid:
+ *   realizeZeroPoleGainMatrix (each entry to its transfer function, then the transfer-function
+ *   realization); nonlinear: buildNonlinearPlant's linearization.
+ * Cost: that of the routine used (O(n²) for the linear forms, plus balancing).
+ * Accuracy: as the routine used; every model is checked finite.
+ * Errors: the model layer's errors ("invalid-argument", "non-finite", "shape-mismatch",
+ *   "empty", ...) with the message prefixed by `path`.
+ * Example: buildPlantModel({ type: "zero-pole-gain", zeros: [[[], []]], poles: [[[-1], [-2]]],
+ *   gain: [[2, 1]], sampleTime: null }, "plants[0].model") has 1 output, 2 inputs and
+ *   G(0) = [[2, 0.5]]; check against −C A⁻¹ B + D.
+ */
 export function buildPlantModel(spec: ModelSpec, path: string): StateSpace {
   // buildNonlinearPlant prefixes its own paths (the operating point has a deeper one).
   if (spec.type === "nonlinear") return buildNonlinearPlant(spec, path).linearization.model;
@@ -122,7 +141,16 @@ export function buildPlantModel(spec: ModelSpec, path: string): StateSpace {
         return withNames(realizeTransferFunction(tf), spec.names, spec.units);
       }
       case "zero-pole-gain": {
-        const zpk = createZeroPoleGain(spec.zeros.map(toComplex), spec.poles.map(toComplex), spec.gain, spec.sampleTime);
+        if (Array.isArray(spec.gain)) {
+          // MIMO: one entry per (output, input), realized through the transfer-function grid.
+          const zeros = spec.zeros as ComplexSpec[][][];
+          const poles = spec.poles as ComplexSpec[][][];
+          const entries = spec.gain.map((row, i) =>
+            row.map((gain, j): ZeroPoleGain => ({ zeros: zeros[i]![j]!.map(toComplex), poles: poles[i]![j]!.map(toComplex), gain, sampleTime: spec.sampleTime })),
+          );
+          return withNames(realizeZeroPoleGainMatrix(entries), spec.names, spec.units);
+        }
+        const zpk = createZeroPoleGain((spec.zeros as ComplexSpec[]).map(toComplex), (spec.poles as ComplexSpec[]).map(toComplex), spec.gain, spec.sampleTime);
         return withNames(realizeZeroPoleGain(zpk), spec.names, spec.units);
       }
     }

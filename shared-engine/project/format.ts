@@ -44,11 +44,18 @@ export interface TransferFunctionModelSpec {
   units?: SignalNamesSpec;
 }
 
+/**
+ * G(s) = k·∏(s − z_i)/∏(s − p_i). SISO: `zeros` and `poles` lists and a number `gain`. MIMO:
+ * one entry per (output, input) pair, indexed [output][input] like the transfer-function
+ * form: `zeros[i][j]` and `poles[i][j]` lists (empty for none) and `gain[i][j]`. The form is
+ * MIMO exactly when `gain` is a list of rows. Complex values come in conjugate pairs within
+ * each list.
+ */
 export interface ZeroPoleGainModelSpec {
   type: "zero-pole-gain";
-  zeros: ComplexSpec[];
-  poles: ComplexSpec[];
-  gain: number;
+  zeros: ComplexSpec[] | ComplexSpec[][][];
+  poles: ComplexSpec[] | ComplexSpec[][][];
+  gain: number | number[][];
   sampleTime: number | null;
   names?: SignalNamesSpec;
   units?: SignalNamesSpec;

@@ -6,6 +6,8 @@
  * it where integral action refers to it.
  */
 import type { PlantSpec, ProjectFile, VariantSpec } from "../../../shared-engine/api/contract";
+import { transferFunctionSize } from "./transferFunctionGrid";
+import { zeroPoleGainSize } from "./zeroPoleGainGrid";
 
 // The document's part types, derived from the bridge contract (the renderer imports no other engine module).
 export type ModelSpec = PlantSpec["model"];
@@ -93,6 +95,25 @@ function replacePlant(doc: ProjectFile, plantId: string, change: (p: PlantSpec) 
 export function updateVariant(doc: ProjectFile, variantId: string, change: (v: VariantSpec) => VariantSpec): ProjectFile {
   findVariant(doc, variantId);
   return { ...doc, variants: doc.variants.map((v) => (v.id === variantId ? change(structuredClone(v)) : v)) };
+}
+
+/** A plant form whose signal names and units the document holds in `names`/`units`. */
+export type LinearModelSpec = Exclude<ModelSpec, { type: "nonlinear" }>;
+
+/**
+ * Signal counts of a linear plant as far as the document tells: all four kinds for state space;
+ * inputs and outputs of a transfer-function or zero-pole-gain grid (their states belong to the
+ * realization and they have no disturbance inputs, so those count 0 here).
+ */
+export function linearSignalCounts(model: LinearModelSpec): PlantDimensions {
+  if (model.type === "state-space") return stateSpaceDimensions(model);
+  const { outputs, inputs } = model.type === "transfer-function" ? transferFunctionSize(model) : zeroPoleGainSize(model);
+  return { states: 0, inputs, outputs, disturbances: 0 };
+}
+
+function requireLinear(plant: PlantSpec): LinearModelSpec {
+  if (plant.model.type === "nonlinear") throw new Error(`Plant “${plant.id}” is given by equations; its signal names are those of the equations.`);
+  return plant.model;
 }
 
 function requireStateSpace(plant: PlantSpec): StateSpaceModelSpec {
@@ -233,14 +254,16 @@ function resizeVariant(v: VariantSpec, dims: PlantDimensions, outputNames: strin
 }
 
 /**
- * Renames one signal. Names must be unique within their kind and non-empty; integral action of
- * every variant of this plant follows an output's new name.
+ * Renames one signal of a linear plant (state space: any kind; transfer function and
+ * zero-pole-gain: inputs and outputs). Names must be unique within their kind, non-empty and
+ * identifiers; integral action of every variant of this plant follows an output's new name.
  */
 export function renameSignal(doc: ProjectFile, plantId: string, kind: SignalKind, index: number, name: string): ProjectFile {
   const trimmed = name.trim();
   const plant = findPlant(doc, plantId);
-  const model = requireStateSpace(plant);
-  const dims = stateSpaceDimensions(model);
+  const model = requireLinear(plant);
+  const dims = linearSignalCounts(model);
+  requireNamedKind(model, kind);
   if (trimmed === "") throw new Error("A signal name cannot be empty.");
   if (!/^[A-Za-z_][A-Za-z0-9_]*$/.test(trimmed)) throw new Error(`“${trimmed}” is not a usable name: start with a letter or _, then letters, digits or _.`);
   const names = signalNames(model.names, kind, dims[kind]);
@@ -248,14 +271,23 @@ export function renameSignal(doc: ProjectFile, plantId: string, kind: SignalKind
   const old = names[index]!;
   if (names.some((n, i) => i !== index && n === trimmed)) throw new Error(`Another ${kind.slice(0, -1)} is already named “${trimmed}”.`);
   names[index] = trimmed;
-  const allNames: SignalNamesSpec = {
-    states: signalNames(model.names, "states", dims.states),
-    inputs: signalNames(model.names, "inputs", dims.inputs),
-    outputs: signalNames(model.names, "outputs", dims.outputs),
-    ...(dims.disturbances > 0 ? { disturbances: signalNames(model.names, "disturbances", dims.disturbances) } : {}),
-    [kind]: names,
-  };
-  const changed = replacePlant(doc, plantId, (p) => ({ ...p, model: { ...requireStateSpace(p), names: allNames } }));
+  const allNames: SignalNamesSpec =
+    model.type === "state-space"
+      ? {
+          states: signalNames(model.names, "states", dims.states),
+          inputs: signalNames(model.names, "inputs", dims.inputs),
+          outputs: signalNames(model.names, "outputs", dims.outputs),
+          ...(dims.disturbances > 0 ? { disturbances: signalNames(model.names, "disturbances", dims.disturbances) } : {}),
+          [kind]: names,
+        }
+      : {
+          // Other kinds the file may name (states that fit the realization) are kept as they are.
+          ...model.names,
+          inputs: signalNames(model.names, "inputs", dims.inputs),
+          outputs: signalNames(model.names, "outputs", dims.outputs),
+          [kind]: names,
+        };
+  const changed = replacePlant(doc, plantId, (p) => ({ ...p, model: { ...requireLinear(p), names: allNames } }));
   if (kind !== "outputs") return changed;
   return {
     ...changed,
@@ -265,14 +297,24 @@ export function renameSignal(doc: ProjectFile, plantId: string, kind: SignalKind
   };
 }
 
+// Transfer-function and zero-pole-gain plants name only their inputs and outputs.
+function requireNamedKind(model: LinearModelSpec, kind: SignalKind): void {
+  if (model.type !== "state-space" && kind !== "inputs" && kind !== "outputs") {
+    throw new Error(`A ${model.type === "transfer-function" ? "transfer-function" : "zero-pole-gain"} plant names only its inputs and outputs; its states belong to the realization.`);
+  }
+}
+
+/** Sets the unit of one signal of a linear plant (empty text: no unit). */
 export function setSignalUnit(doc: ProjectFile, plantId: string, kind: SignalKind, index: number, unit: string): ProjectFile {
-  const model = requireStateSpace(findPlant(doc, plantId));
-  const dims = stateSpaceDimensions(model);
+  const model = requireLinear(findPlant(doc, plantId));
+  requireNamedKind(model, kind);
+  const dims = linearSignalCounts(model);
+  if (index < 0 || index >= dims[kind]) throw new Error(`There is no ${kind.slice(0, -1)} ${index + 1}.`);
   const units = { ...(model.units ?? {}) };
   const list = signalUnits(model.units, kind, dims[kind]);
   list[index] = unit.trim();
   units[kind] = list;
-  return replacePlant(doc, plantId, (p) => ({ ...p, model: { ...requireStateSpace(p), units } }));
+  return replacePlant(doc, plantId, (p) => ({ ...p, model: { ...requireLinear(p), units } }));
 }
 
 /** Replaces the plant's model (switching between state-space, transfer-function and zero-pole-gain entry). */

@@ -8,3 +8,4 @@ export * from "./nonlinearEditor";
 export * from "./nonlinearTasks";
 export * from "./locusState";
 export * from "./transferFunctionGrid";
+export * from "./zeroPoleGainGrid";

@@ -8,6 +8,7 @@ import { asPole, brysonWeights, setPoleKeepingPairs, type Pole } from "./designH
 import {
   addVariant,
   duplicateVariant,
+  findPlant,
   findVariant,
   removeVariant,
   renameSignal,
@@ -24,6 +25,8 @@ import {
   type SignalKind,
 } from "./documentEdits";
 import { parseMatrixText } from "./parseMatrixText";
+import { resizeTransferFunction } from "./transferFunctionGrid";
+import { parseZeroPoleGainPart, resizeZeroPoleGain, withZeroPoleGainEntry, type ZeroPoleGainEntry } from "./zeroPoleGainGrid";
 import type { WorkspaceStore } from "./workspaceStore";
 
 export const cellKey = (plantId: string, name: MatrixName, row: number, column: number): string => `${plantId}:${name}:${row}:${column}`;
@@ -64,6 +67,43 @@ export function setUnitCommand(store: WorkspaceStore, plantId: string, kind: Sig
 
 export function setModelCommand(store: WorkspaceStore, plantId: string, model: ModelSpec, what: string): boolean {
   return store.edit(`${what} of plant ${plantId}`, (doc) => setModel(doc, plantId, model));
+}
+
+/**
+ * Outputs × inputs of a transfer-function or zero-pole-gain plant: entries that remain are kept,
+ * new pairs start uncoupled, names and units follow (resizeTransferFunction, resizeZeroPoleGain).
+ */
+export function resizeEntryGrid(store: WorkspaceStore, plantId: string, outputs: number, inputs: number): boolean {
+  return store.edit(`changed plant ${plantId} to ${outputs} outputs and ${inputs} inputs`, (doc) => {
+    const model = findPlant(doc, plantId).model;
+    if (model.type === "transfer-function") return setModel(doc, plantId, resizeTransferFunction(model, outputs, inputs));
+    if (model.type === "zero-pole-gain") return setModel(doc, plantId, resizeZeroPoleGain(model, outputs, inputs));
+    throw new Error(`Plant “${plantId}” is not entered per (output, input) pair; switch it to transfer functions or zeros, poles and gain first.`);
+  });
+}
+
+/** The field name of one part of a zero-pole-gain entry; its draft key is `${plantId}:${field}`. */
+export const zeroPoleGainField = (output: number, input: number, part: keyof ZeroPoleGainEntry): string => `zpk.${output}.${input}.${part}`;
+export const zeroPoleGainFieldKey = (plantId: string, output: number, input: number, part: keyof ZeroPoleGainEntry): string => `${plantId}:${zeroPoleGainField(output, input, part)}`;
+
+/**
+ * Typed zeros, poles or gain of the entry from input `input` to output `output` (0-based). Text
+ * that does not parse, or a complex value without its conjugate, stays in the field's draft with
+ * the reason; the model keeps its last valid entry.
+ */
+export function setZeroPoleGainPart(store: WorkspaceStore, plantId: string, output: number, input: number, part: keyof ZeroPoleGainEntry, text: string): boolean {
+  return store.editText(zeroPoleGainFieldKey(plantId, output, input, part), text, `set the ${part} from input ${input + 1} to output ${output + 1} of plant ${plantId}`, (t) => {
+    const parsed = parseZeroPoleGainPart(part, t);
+    if (!parsed.ok) return parsed;
+    return {
+      ok: true,
+      apply: (doc) => {
+        const model = findPlant(doc, plantId).model;
+        if (model.type !== "zero-pole-gain") throw new Error(`Plant “${plantId}” is not entered as zeros, poles and gain.`);
+        return setModel(doc, plantId, withZeroPoleGainEntry(model, output, input, part, parsed.value));
+      },
+    };
+  });
 }
 
 // ---- variants --------------------------------------------------------------------------------

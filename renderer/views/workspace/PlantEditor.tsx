@@ -1,24 +1,31 @@
-import { useEffect, useState } from "react";
+import { useEffect, useState, type ReactNode } from "react";
 import type { PlantSpec } from "../../../shared-engine/api/contract";
 import {
+  complexText,
+  linearSignalCounts,
   matrixOf,
-  parseComplexListText,
   parseNumberText,
   parseVectorText,
   renameSignalCommand,
   resizeDimensions,
+  resizeEntryGrid,
+  setZeroPoleGainPart,
+  zeroPoleGainField,
   setModel,
   setModelCommand,
   setUnitCommand,
   signalNames,
   signalUnits,
   stateSpaceDimensions,
-  resizeTransferFunction,
   transferFunctionEntry,
   transferFunctionSize,
   withTransferFunctionEntry,
+  zeroPoleGainEntry,
+  zeroPoleGainSize,
   TF_GRID_LIMIT,
+  type ComplexSpec,
   type MatrixName,
+  type ZeroPoleGainEntry,
   type ModelSpec,
   type PlantDimensions,
   type SignalKind,
@@ -165,12 +172,19 @@ function SizeForm<K extends SignalKind>({ sizes, kinds, min, max, onApply, inval
   );
 }
 
-function SignalTable({ store, state, plant, dims }: Props & { dims: PlantDimensions }) {
-  if (plant.model.type !== "state-space") return null;
+/**
+ * Names and units of a linear plant's signals, stored in the model's `names`/`units`: every kind
+ * of a state-space plant; the inputs and outputs of a transfer-function or zero-pole-gain plant
+ * (their states belong to the realization). A refused name keeps the typed text, marked.
+ */
+function SignalTable({ store, state, plant }: Props) {
+  if (plant.model.type === "nonlinear") return null;
   const model = plant.model;
+  const dims = linearSignalCounts(model);
   return (
     <details className="signal-table" open>
       <summary>Signal names and units</summary>
+      {model.type !== "state-space" && <p className="muted hint">Inputs and outputs; the states are those of the realization the design computes.</p>}
       <div className="signal-columns">
         {(Object.keys(KIND_LABEL) as SignalKind[])
           .filter((k) => dims[k] > 0)
@@ -226,7 +240,7 @@ function StateSpaceEditor({ store, state, plant }: Props) {
   return (
     <>
       <DimensionControls store={store} plant={plant} dims={dims} />
-      <SignalTable store={store} state={state} plant={plant} dims={dims} />
+      <SignalTable store={store} state={state} plant={plant} />
       <p className="muted hint equation">
         dx/dt = A x + B u + F w, y = C x + D u + E w {model.sampleTime !== null ? "(sampled: x[k+1] on the left)" : ""}
       </p>
@@ -254,16 +268,29 @@ function StateSpaceEditor({ store, state, plant }: Props) {
   );
 }
 
-function CoefficientField({ store, state, plant, field, label, shortLabel, value, parse }: Props & { field: string; label: string; shortLabel?: string; value: string; parse: (t: string) => { ok: true; model: ModelSpec } | { ok: false; error: string } }) {
+/**
+ * A text field of the plant's coefficients. `parse` turns the text into the new model; or
+ * `onCommit` runs a workspace command whose draft key is `${plant.id}:${field}`.
+ */
+function CoefficientField({ store, state, plant, field, label, shortLabel, value, parse, onCommit }: Props & {
+  field: string;
+  label: string;
+  shortLabel?: string;
+  value: string;
+  parse?: (t: string) => { ok: true; model: ModelSpec } | { ok: false; error: string };
+  onCommit?: (t: string) => void;
+}) {
   const key = `${plant.id}:${field}`;
   const draft = state.drafts[key];
   const [text, setText] = useState(draft?.text ?? value);
   useEffect(() => setText(draft?.text ?? value), [value, draft?.text]);
-  const commit = () =>
+  const commit = () => {
+    if (onCommit) return onCommit(text);
     store.editText(key, text, `set the ${label.toLowerCase()} of plant ${plant.id}`, (t) => {
-      const r = parse(t);
+      const r = parse ? parse(t) : { ok: false as const, error: "This field cannot be edited." };
       return r.ok ? { ok: true, apply: (doc) => setModel(doc, plant.id, r.model) } : r;
     });
+  };
   const id = `coef-${plant.id}-${field}`;
   return (
     <div className="form-row coefficient-row">
@@ -278,14 +305,72 @@ function CoefficientField({ store, state, plant, field, label, shortLabel, value
   );
 }
 
+/** Input (column) and output (row) labels of an entry grid: names from the model, units beside them. */
+interface GridSignal {
+  name: string;
+  unit: string;
+}
+
+function gridSignals(model: { names?: { inputs?: string[]; outputs?: string[] }; units?: { inputs?: string[]; outputs?: string[] } }, outputs: number, inputs: number): { inputs: GridSignal[]; outputs: GridSignal[] } {
+  const of = (kind: "inputs" | "outputs", count: number) => {
+    const names = signalNames(model.names, kind, count);
+    const units = signalUnits(model.units, kind, count);
+    return names.map((name, k) => ({ name, unit: units[k] ?? "" }));
+  };
+  return { inputs: of("inputs", inputs), outputs: of("outputs", outputs) };
+}
+
+function SignalHeader({ signal, scope }: { signal: GridSignal; scope: "col" | "row" }) {
+  return (
+    <th scope={scope}>
+      <span className="mono">{signal.name}</span>
+      {signal.unit && <span className="muted small-text"> ({signal.unit})</span>}
+    </th>
+  );
+}
+
+/** One cell per (output, input) pair, outputs as rows and inputs as columns, headed by their names and units. */
+function EntryGrid({ testId, className, signals, cell }: { testId: string; className?: string; signals: { inputs: GridSignal[]; outputs: GridSignal[] }; cell: (i: number, j: number, input: string, output: string) => ReactNode }) {
+  return (
+    <div className="tf-grid-scroll">
+      <table className={className ? `tf-grid ${className}` : "tf-grid"} data-testid={testId}>
+        <thead>
+          <tr>
+            <th scope="col" className="tf-corner">output ╲ input</th>
+            {signals.inputs.map((u, j) => <SignalHeader key={j} signal={u} scope="col" />)}
+          </tr>
+        </thead>
+        <tbody>
+          {signals.outputs.map((y, i) => (
+            <tr key={i}>
+              <SignalHeader signal={y} scope="row" />
+              {signals.inputs.map((u, j) => <td key={j}>{cell(i, j, u.name, y.name)}</td>)}
+            </tr>
+          ))}
+        </tbody>
+      </table>
+    </div>
+  );
+}
+
+/** Outputs × inputs of an entry-per-pair plant (transfer function, zeros-poles-gain); applying keeps the entries that remain. */
+function GridSize({ store, plant, outputs, inputs }: { store: WorkspaceStore; plant: PlantSpec; outputs: number; inputs: number }) {
+  return (
+    <SizeForm
+      sizes={{ outputs, inputs }}
+      kinds={["outputs", "inputs"] as const}
+      min={() => 1}
+      max={TF_GRID_LIMIT}
+      invalidMessage={`Outputs and inputs: whole numbers from 1 to ${TF_GRID_LIMIT}.`}
+      onApply={(draft) => resizeEntryGrid(store, plant.id, draft.outputs, draft.inputs)}
+    />
+  );
+}
+
 function TransferFunctionEditor(props: Props) {
   const model = props.plant.model;
   if (model.type !== "transfer-function") return null;
   const { outputs, inputs } = transferFunctionSize(model);
-  const names = (kind: "inputs" | "outputs", count: number) =>
-    Array.from({ length: count }, (_, k) => model.names?.[kind]?.[k] ?? `${kind === "inputs" ? "u" : "y"}${k + 1}`);
-  const inputNames = names("inputs", inputs);
-  const outputNames = names("outputs", outputs);
   const vec = (v: number[]) => v.join(" ");
   const parser = (i: number, j: number, which: "numerator" | "denominator") => (t: string) => {
     const r = parseVectorText(t);
@@ -296,7 +381,8 @@ function TransferFunctionEditor(props: Props) {
   const single = outputs === 1 && inputs === 1;
   return (
     <div className="coefficients">
-      <TransferFunctionSize store={props.store} plant={props.plant} outputs={outputs} inputs={inputs} />
+      <GridSize store={props.store} plant={props.plant} outputs={outputs} inputs={inputs} />
+      <SignalTable {...props} />
       <p className="muted hint">Coefficients, highest power of s (or z) first, e.g. “1 3 2” for s² + 3s + 2.{single ? "" : " One transfer function per output (row) and input (column); “0” over “1” where an input does not reach an output."}</p>
       {single ? (
         <>
@@ -304,79 +390,64 @@ function TransferFunctionEditor(props: Props) {
           <CoefficientField {...props} field="denominator" label="Denominator" value={vec(transferFunctionEntry(model, 0, 0).denominator)} parse={parser(0, 0, "denominator")} />
         </>
       ) : (
-        <div className="tf-grid-scroll">
-        <table className="tf-grid" data-testid="tf-grid">
-          <thead>
-            <tr>
-              <th scope="col" className="tf-corner">output ╲ input</th>
-              {inputNames.map((n) => <th key={n} scope="col" className="mono">{n}</th>)}
-            </tr>
-          </thead>
-          <tbody>
-            {outputNames.map((out, i) => (
-              <tr key={out}>
-                <th scope="row" className="mono">{out}</th>
-                {inputNames.map((inp, j) => {
-                  const e = transferFunctionEntry(model, i, j);
-                  return (
-                    <td key={inp}>
-                      <CoefficientField {...props} field={`tf.${i}.${j}.numerator`} label={`Numerator ${inp} → ${out}`} shortLabel="num" value={vec(e.numerator)} parse={parser(i, j, "numerator")} />
-                      <CoefficientField {...props} field={`tf.${i}.${j}.denominator`} label={`Denominator ${inp} → ${out}`} shortLabel="den" value={vec(e.denominator)} parse={parser(i, j, "denominator")} />
-                    </td>
-                  );
-                })}
-              </tr>
-            ))}
-          </tbody>
-        </table>
-        </div>
+        <EntryGrid
+          testId="tf-grid"
+          signals={gridSignals(model, outputs, inputs)}
+          cell={(i, j, inp, out) => {
+            const e = transferFunctionEntry(model, i, j);
+            return (
+              <>
+                <CoefficientField {...props} field={`tf.${i}.${j}.numerator`} label={`Numerator ${inp} → ${out}`} shortLabel="num" value={vec(e.numerator)} parse={parser(i, j, "numerator")} />
+                <CoefficientField {...props} field={`tf.${i}.${j}.denominator`} label={`Denominator ${inp} → ${out}`} shortLabel="den" value={vec(e.denominator)} parse={parser(i, j, "denominator")} />
+              </>
+            );
+          }}
+        />
       )}
     </div>
-  );
-}
-
-/** Outputs × inputs of a transfer-function plant; applying keeps the entries that remain. */
-function TransferFunctionSize({ store, plant, outputs, inputs }: { store: WorkspaceStore; plant: PlantSpec; outputs: number; inputs: number }) {
-  return (
-    <SizeForm
-      sizes={{ outputs, inputs }}
-      kinds={["outputs", "inputs"] as const}
-      min={() => 1}
-      max={TF_GRID_LIMIT}
-      invalidMessage={`Outputs and inputs: whole numbers from 1 to ${TF_GRID_LIMIT}.`}
-      onApply={(draft) => {
-        if (plant.model.type !== "transfer-function") return;
-        const model = resizeTransferFunction(plant.model, draft.outputs, draft.inputs);
-        store.edit(`changed plant ${plant.id} to ${draft.outputs} outputs and ${draft.inputs} inputs`, (doc) => setModel(doc, plant.id, model));
-      }}
-    />
   );
 }
 
 function ZeroPoleGainEditor(props: Props) {
   const model = props.plant.model;
   if (model.type !== "zero-pole-gain") return null;
-  const list = (v: typeof model.zeros) => v.map((z) => (typeof z === "number" ? String(z) : z.im === 0 ? String(z.re) : `${z.re}${z.im < 0 ? "-" : "+"}${Math.abs(z.im)}i`)).join(", ");
-  const parser = (which: "zeros" | "poles") => (t: string) => {
-    const r = parseComplexListText(t);
-    if (!r.ok) return r;
-    return { ok: true as const, model: { ...model, [which]: r.values } as ModelSpec };
+  const { store, plant } = props;
+  const { outputs, inputs } = zeroPoleGainSize(model);
+  const list = (v: ComplexSpec[]) => v.map(complexText).join(", ");
+  const single = outputs === 1 && inputs === 1;
+  const fields = (i: number, j: number, labels: (part: string) => { label: string; shortLabel?: string }) => {
+    const e = zeroPoleGainEntry(model, i, j);
+    const shown: Record<keyof ZeroPoleGainEntry, string> = { zeros: list(e.zeros), poles: list(e.poles), gain: String(e.gain) };
+    return (["zeros", "poles", "gain"] as const).map((part) => (
+      <CoefficientField
+        key={part}
+        {...props}
+        field={zeroPoleGainField(i, j, part)}
+        {...labels(part)}
+        value={shown[part]}
+        onCommit={(t) => setZeroPoleGainPart(store, plant.id, i, j, part, t)}
+      />
+    ));
   };
+  const capital = (part: string) => part[0]!.toUpperCase() + part.slice(1);
   return (
     <div className="coefficients">
-      <p className="muted hint">Comma-separated; complex values as “−2+3i”, or a pair as “−2±3i”.</p>
-      <CoefficientField {...props} field="zeros" label="Zeros" value={list(model.zeros)} parse={parser("zeros")} />
-      <CoefficientField {...props} field="poles" label="Poles" value={list(model.poles)} parse={parser("poles")} />
-      <CoefficientField
-        {...props}
-        field="gain"
-        label="Gain"
-        value={String(model.gain)}
-        parse={(t) => {
-          const n = parseNumberText(t);
-          return n.ok ? { ok: true, model: { ...model, gain: n.value } } : { ok: false, error: `The gain ${n.error}.` };
-        }}
-      />
+      <GridSize store={store} plant={plant} outputs={outputs} inputs={inputs} />
+      <SignalTable {...props} />
+      <p className="muted hint">
+        Comma-separated; complex values as “−2+3i”, or a pair as “−2±3i”; empty for none.
+        {single ? "" : " One entry k·∏(s − z)/∏(s − p) per output (row) and input (column); gain 0 where an input does not reach an output."}
+      </p>
+      {single ? (
+        fields(0, 0, (part) => ({ label: capital(part) }))
+      ) : (
+        <EntryGrid
+          testId="zpk-grid"
+          className="zpk-grid"
+          signals={gridSignals(model, outputs, inputs)}
+          cell={(i, j, inp, out) => fields(i, j, (part) => ({ label: `${capital(part)} ${inp} → ${out}`, shortLabel: part }))}
+        />
+      )}
     </div>
   );
 }
