@@ -5,7 +5,7 @@
 import { Matrix } from "ml-matrix";
 import { EngineError } from "../errors";
 import { eigenvalues, type Complex } from "../linalg";
-import { DEFAULT_TRACE_OPTIONS, matchPoles, tracePoles } from "./poleTracker";
+import { DEFAULT_TRACE_OPTIONS, matchPoles, poleSpread, tracePoles } from "./poleTracker";
 
 export interface ParameterLocus {
   /** Parameter values, increasing, from range[0] to range[1] (adaptive, at least `points`). */
@@ -81,7 +81,7 @@ export function parameterLocus(closedLoopMatrix: (value: number) => number[][], 
   const last = polesAtValue(to);
   const trace = tracePoles((s) => polesAtValue(toValue(s)), first, s0, s1, {
     ...DEFAULT_TRACE_OPTIONS,
-    scale: spreadScale([...first, ...last]),
+    scale: poleSpread([...first, ...last]),
     minSteps: points - 1,
   });
   const values = trace.params.map(toValue);
@@ -93,15 +93,4 @@ export function parameterLocus(closedLoopMatrix: (value: number) => number[][], 
     trace.branches.forEach((br, i) => (br[br.length - 1] = end[i]!));
   }
   return { values, branches: trace.branches };
-}
-
-function spreadScale(points: Complex[]): number {
-  const mean = points.reduce((s, p) => ({ re: s.re + p.re / points.length, im: s.im + p.im / points.length }), { re: 0, im: 0 });
-  let spread = 0;
-  let magnitude = 0;
-  for (const p of points) {
-    spread = Math.max(spread, Math.hypot(p.re - mean.re, p.im - mean.im));
-    magnitude = Math.max(magnitude, Math.hypot(p.re, p.im));
-  }
-  return spread > 0 ? spread : magnitude > 0 ? magnitude : 1;
 }

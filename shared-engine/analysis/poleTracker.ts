@@ -43,6 +43,23 @@ export const DEFAULT_TRACE_OPTIONS: Omit<TraceOptions, "scale"> = {
 };
 
 /**
+ * The length scale of a set of poles for tracing: the largest distance from their centroid, or,
+ * when they all coincide, the largest magnitude (1 for a set of zeros). Used by root and parameter
+ * loci for their step-size and separation tests. Cost O(n). Example: poleSpread([{re: -1, im: 0},
+ * {re: -3, im: 0}]) = 1.
+ */
+export function poleSpread(points: readonly Complex[]): number {
+  const mean = points.reduce((s, p) => ({ re: s.re + p.re / points.length, im: s.im + p.im / points.length }), { re: 0, im: 0 });
+  let spread = 0;
+  let magnitude = 0;
+  for (const p of points) {
+    spread = Math.max(spread, Math.hypot(p.re - mean.re, p.im - mean.im));
+    magnitude = Math.max(magnitude, Math.hypot(p.re, p.im));
+  }
+  return spread > 0 ? spread : magnitude > 0 ? magnitude : 1;
+}
+
+/**
  * Computes: `next` reordered so that next'[i] is assigned to previous[i] with the least total
  *   distance Σ|previous[i] − next'[i]| (a minimal-distance assignment).
  * Requires: equal lengths. Method: each previous point takes its nearest new point; when those

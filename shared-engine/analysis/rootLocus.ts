@@ -13,7 +13,7 @@ import { EngineError } from "../errors";
 import { eigenvalues, type Complex } from "../linalg";
 import { sisoZerosAndGain, type StateSpace } from "../model";
 import { dist, findBreakPoints, findCrossings, locusAsymptotes } from "./locusConstruction";
-import { DEFAULT_TRACE_OPTIONS, matchPoles, tracePoles } from "./poleTracker";
+import { DEFAULT_TRACE_OPTIONS, matchPoles, poleSpread, tracePoles } from "./poleTracker";
 import { checkRootLocusRequest, type RootLocusOptions } from "./rootLocusOptions";
 
 export { gainAtPoint } from "./loopEvaluation";
@@ -139,17 +139,8 @@ export function rootLocus(L: StateSpace, options: RootLocusOptions = {}): RootLo
 // Length scale of the plot: the spread of the poles and zeros about their mean (their largest
 // magnitude, or 1, when they coincide); at least 1 when sampled.
 function locusScale(poles: Complex[], zeros: Complex[], sampled: boolean): number {
-  const all = [...poles, ...zeros];
-  const mean = all.reduce((s, p) => ({ re: s.re + p.re / all.length, im: s.im + p.im / all.length }), { re: 0, im: 0 });
-  let spread = 0;
-  let magnitude = 0;
-  for (const p of all) {
-    spread = Math.max(spread, Math.hypot(p.re - mean.re, p.im - mean.im));
-    magnitude = Math.max(magnitude, Math.hypot(p.re, p.im));
-  }
-  let scale = spread > 0 ? spread : magnitude > 0 ? magnitude : 1;
-  if (sampled) scale = Math.max(scale, 1); // the unit circle belongs to the picture
-  return scale;
+  const scale = poleSpread([...poles, ...zeros]);
+  return sampled ? Math.max(scale, 1) : scale; // the unit circle belongs to the picture
 }
 
 // Smallest |k| = k0·10^j at which every finite zero has a pole within 1 % of the scale and the
