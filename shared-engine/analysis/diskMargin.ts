@@ -1,9 +1,10 @@
 /**
  * Symmetric disk margin of a SISO loop, and the scalar searches along the frequency axis that
- * `loopMargins` shares with it: peak refinement (|S − ½|, |S|, |T|) and Brent's root finder
- * (crossovers, bandwidth).
+ * `loopMargins` shares with it: peak refinement (|S − ½|, |S|, |T|; Brent's minimisation in
+ * peakSearch.ts) and Brent's root finder (crossovers, bandwidth).
  */
 import { EngineError } from "../errors";
+import { maximiseOnInterval } from "./peakSearch";
 
 export interface DiskMargin {
   /** α_max = 1/‖S − ½‖∞ = 2/‖S − T‖∞; 0 when the nominal closed loop is unstable. */
@@ -23,8 +24,6 @@ export interface Peak {
   frequencyRadPerSec: number;
 }
 
-const GOLDEN = (Math.sqrt(5) - 1) / 2;
-const MAX_GOLDEN_STEPS = 200;
 /** How many of the largest local maxima on the grid are refined (lightly damped loops may have several peaks of similar height). */
 const PEAKS_REFINED = 5;
 const MAX_BRENT_STEPS = 200;
@@ -66,19 +65,28 @@ export function diskMarginFromPeak(peak: number, frequencyRadPerSec: number, clo
 
 /**
  * Computes: the maximum of a continuous function f(ω) ≥ 0 over the span of an increasing grid:
- *   the largest grid value, improved by golden-section search on the two grid intervals around
- *   each of the (up to 5) largest local maxima of the grid values `values[k] = f(grid[k])`.
+ *   the largest grid value, improved by a local search on the two grid intervals around each of
+ *   the (up to 5) largest local maxima of the grid values `values[k] = f(grid[k])`.
  * Requires: grid increasing, values finite, same length ≥ 1; f finite on the grid's span.
- * Method: golden-section search (Kiefer, "Sequential minimax search for a maximum", Proc. AMS
- *   4(3):502–506, 1953) down to a bracket of width 1e-12·max(|a|, |b|) of the initial bracket; the best point ever
- *   evaluated is returned, so the result is never below the grid maximum.
- * Cost: at most 5·(≈ 60) evaluations of f. Iteration limit 200 golden steps per peak.
- * Accuracy: for a smooth peak, value error O((1e-12·ω/width)²) relative.
- * Errors: "no-convergence" if the golden-section limit is reached (details: iterations,
- *   bracket), "invalid-argument" for mismatched lengths.
+ * Method: Brent's method without derivatives (`maximiseOnInterval`: Brent, "Algorithms for
+ *   Minimization without Derivatives", Prentice-Hall 1973, ch. 5) on [ω_{k−1}, ω_{k+1}] in ω,
+ *   started at the grid maximum ω_k with the two neighbours as earlier points (its first step is
+ *   the parabola through the three grid values), down to a bracket of width at most
+ *   1e-12·max(ω_{k−1}, ω_{k+1}) (the tolerance of the golden-section search used before); a
+ *   maximum at the first or last grid point is searched from a golden-section point. The best
+ *   point ever evaluated is returned, so the result is never below the grid maximum.
+ * Cost: for an interior smooth peak about 10–35 evaluations of f (golden section: about 50–55);
+ *   a peak at an end of the grid about 50–60, as before; at most 5 peaks. Iteration limit 200
+ *   per peak. (Measured on a 100-state resonant loop: 240 → 114 evaluations for |S − ½|.)
+ * Accuracy: the maximiser of a unimodal peak located to within 5e-13·max(ω_{k−1}, ω_{k+1}) in
+ *   exact arithmetic; in practice to the √ε-relative width where rounding flattens f, where
+ *   the value is then accurate to rounding.
+ * Errors: "no-convergence" if the iteration limit is reached (details: iterations, bracket),
+ *   "non-finite" if f is NaN or ±Infinity at a point of the search (details: x, value),
+ *   "invalid-argument" for mismatched lengths.
  * Example: refinePeak((w) => 1 / (1 + (w - 1) ** 2), [0, 0.9, 2], [...]) → value 1 at ω ≈ 1.
  */
-export function refinePeak(f: (omega: number) => number, grid: number[], values: number[]): Peak {
+export function refinePeak(f: (omega: number) => number, grid: number[], values: number[], what = "peak"): Peak {
   if (grid.length !== values.length || grid.length === 0) {
     throw new EngineError("invalid-argument", `grid and values must have the same non-zero length (${grid.length} and ${values.length})`, {});
   }
@@ -91,47 +99,23 @@ export function refinePeak(f: (omega: number) => number, grid: number[], values:
   candidates.sort((a, b) => values[b]! - values[a]!);
   let best: Peak = { value: values[candidates[0]!]!, frequencyRadPerSec: grid[candidates[0]!]! };
   for (const k of candidates.slice(0, PEAKS_REFINED)) {
-    const a = grid[Math.max(0, k - 1)]!;
-    const b = grid[Math.min(grid.length - 1, k + 1)]!;
+    const lo = Math.max(0, k - 1);
+    const hi = Math.min(grid.length - 1, k + 1);
+    const a = grid[lo]!;
+    const b = grid[hi]!;
     if (!(b > a)) continue;
-    const peak = goldenMaximum(f, a, b);
-    if (peak.value > best.value) best = peak;
+    // Brent's stopping test leaves a bracket of width ≤ 4·tolerance: 1e-12·max(|a|, |b|) as before.
+    const tolerance = 0.25e-12 * Math.max(Math.abs(a), Math.abs(b));
+    // (Strictly inside: a grid with repeated frequencies gets the plain start.)
+    const interior = a < grid[k]! && grid[k]! < b;
+    const peak = maximiseOnInterval(f, a, b, {
+      tolerance,
+      what: `${what} near ${grid[k]} rad/s`,
+      ...(interior ? { start: { x: grid[k]!, value: values[k]! }, endValues: { a: values[lo]!, b: values[hi]! } } : {}),
+    });
+    if (peak.value > best.value) best = { value: peak.value, frequencyRadPerSec: peak.x };
   }
   return best;
-}
-
-function goldenMaximum(f: (omega: number) => number, a0: number, b0: number): Peak {
-  let a = a0;
-  let b = b0;
-  // Relative to the initial bracket, so a peak at ω = 0 also terminates.
-  const width = 1e-12 * Math.max(Math.abs(a0), Math.abs(b0));
-  let x1 = b - GOLDEN * (b - a);
-  let x2 = a + GOLDEN * (b - a);
-  let f1 = f(x1);
-  let f2 = f(x2);
-  let best: Peak = f1 >= f2 ? { value: f1, frequencyRadPerSec: x1 } : { value: f2, frequencyRadPerSec: x2 };
-  for (let it = 0; it < MAX_GOLDEN_STEPS; it++) {
-    if (b - a <= width) return best;
-    if (f1 >= f2) {
-      b = x2;
-      x2 = x1;
-      f2 = f1;
-      x1 = b - GOLDEN * (b - a);
-      f1 = f(x1);
-      if (f1 > best.value) best = { value: f1, frequencyRadPerSec: x1 };
-    } else {
-      a = x1;
-      x1 = x2;
-      f1 = f2;
-      x2 = a + GOLDEN * (b - a);
-      f2 = f(x2);
-      if (f2 > best.value) best = { value: f2, frequencyRadPerSec: x2 };
-    }
-  }
-  throw new EngineError("no-convergence", `golden-section peak search did not narrow [${a0}, ${b0}] within ${MAX_GOLDEN_STEPS} steps`, {
-    iterations: MAX_GOLDEN_STEPS,
-    bracket: [a, b],
-  });
 }
 
 /**
