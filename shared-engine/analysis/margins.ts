@@ -30,7 +30,7 @@ export interface LoopMargins {
   gainCrossoverRadPerSec: number | null;
   /** Frequency of `gainMarginDb`. */
   phaseCrossoverRadPerSec: number | null;
-  /** min over gain crossovers of (PM mod 360°, in rad)/ω_gc; 0 when the closed loop is unstable; null = no gain crossover. */
+  /** min over gain crossovers ω_gc > 0 of (PM mod 360°, in rad)/ω_gc; 0 when the closed loop is unstable; null = unbounded (no gain crossover above ω = 0). */
   delayMarginSec: number | null;
   /** Sampled loops: delayMarginSec / T (a fraction of a sample is meaningful); null for continuous loops. */
   delayMarginSamples: number | null;
@@ -204,9 +204,14 @@ export function loopMargins(L: StateSpace, options: { grid?: number[] } = {}): L
   const criticalPhase = nearest === null ? null : { frequencyRadPerSec: nearest.frequencyRadPerSec, phaseDeg: (stability.stable ? 1 : -1) * Math.abs(nearest.phaseDeg) };
   if (gainCrossovers.length === 0) warnings.push("no gain crossover on the grid: the phase margin is infinite");
 
+  // Delay margin: the smallest PM/ω_c over the gain crossovers. A delay leaves L unchanged at
+  // ω = 0, so a crossover there (|L(0)| = 1 exactly, e.g. L = 1/(s + 1)) sets no limit; with no
+  // crossover above 0 the delay margin is unbounded (null), never Infinity.
   let delay: number | null = null;
-  if (phaseMargins.length > 0) {
-    delay = stability.stable ? Math.min(...phaseMargins.map((p) => ((((p.phaseDeg % 360) + 360) % 360) * Math.PI) / 180 / p.frequencyRadPerSec)) : 0;
+  const positiveCrossings = phaseMargins.filter((p) => p.frequencyRadPerSec > 0);
+  if (!stability.stable && phaseMargins.length > 0) delay = 0;
+  else if (positiveCrossings.length > 0) {
+    delay = Math.min(...positiveCrossings.map((p) => ((((p.phaseDeg % 360) + 360) % 360) * Math.PI) / 180 / p.frequencyRadPerSec));
   }
 
   // Peaks of |S|, |T|, |S − ½| (S = 0, T = 1 at axis poles of L).

@@ -48,6 +48,20 @@ describe("margins of loops with integrators", () => {
     expect(margins.stateFeedbackLoop).toBeDefined();
   });
 
+  it("gives an unbounded delay margin, not Infinity, when the only gain crossover is at ω = 0 (L = 1/(s + 1) and its sampled twin)", () => {
+    // Hand-derived: |L(jω)| = 1/√(1 + ω²) equals 1 only at ω = 0, where ∠L = 0, so the phase
+    // margin is 180° there; a delay e^{−jωτ} does not change L(0), so no delay destabilises the
+    // loop. Sampled twin: L(z) = 0.5/(z − 0.5) has |L(1)| = 1 and |L(e^{jωT})| < 1 for ω > 0.
+    const continuous = loopMargins(stateSpaceFromMatrices({ A: [[-1]], B: [[1]], C: [[1]], D: [[0]] }));
+    expect(continuous.gainCrossoversRadPerSec).toEqual([0]);
+    expect(continuous.phaseMarginDeg).toBeCloseTo(180, 12);
+    expect(continuous.delayMarginSec).toBeNull();
+    const sampled = loopMargins(stateSpaceFromMatrices({ A: [[0.5]], B: [[1]], C: [[0.5]], D: [[0]], sampleTime: 1 }));
+    expect(sampled.gainCrossoversRadPerSec).toEqual([0]);
+    expect(sampled.delayMarginSec).toBeNull();
+    expect(sampled.delayMarginSamples).toBeNull();
+  });
+
   it("still reports the DC phase crossover of a loop without a pole at 0 (L(0) = −2: gain margin −6.02 dB)", () => {
     // L(s) = −2/(s + 1): L(0) = −2 is real and negative; hand-derived gain margin 20·log10(1/2).
     const m = loopMargins(stateSpaceFromMatrices({ A: [[-1]], B: [[1]], C: [[-2]], D: [[0]] }));
