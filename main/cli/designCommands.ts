@@ -74,8 +74,12 @@ export function formatVariant(v: VariantResult): string {
   if (v.riccati) lines.push(`  Riccati residual ${v.riccati.residual.toExponential(2)}, condition indicator ${v.riccati.conditionIndicator.toExponential(2)}`);
   if (v.margins) {
     const m = v.margins;
-    lines.push(`  margins (${m.loop === "plant-input" ? "loop broken at the plant input" : "unity negative feedback"}): gain ${optional(m.gainDb, " dB")} at ${optional(m.phaseCrossover, " rad/s")}, phase ${optional(m.phaseDeg, "°")} at ${optional(m.gainCrossover, " rad/s")}, delay ${optional(m.delayMargin, " s")}, Ms ${formatReal(m.sensitivityPeak, 4)}`);
-    if (m.stateFeedbackLoop) lines.push(`    (state-feedback loop alone: gain ${optional(m.stateFeedbackLoop.gainDb, " dB")}, phase ${optional(m.stateFeedbackLoop.phaseDeg, "°")})`);
+    // A missing margin is unbounded: the loop never reaches the crossing that would define it.
+    const gain = m.gainDb === null ? "gain unbounded (no phase crossover)" : `gain ${optional(m.gainDb, " dB")} at ${optional(m.phaseCrossover, " rad/s")}`;
+    const phase = m.phaseDeg === null ? "phase unbounded (no gain crossover)" : `phase ${optional(m.phaseDeg, "°")} at ${optional(m.gainCrossover, " rad/s")}`;
+    const delay = m.delayMargin === null ? "delay unbounded" : `delay ${optional(m.delayMargin, " s")}`;
+    lines.push(`  margins (${m.loop === "plant-input" ? "loop broken at the plant input" : "unity negative feedback"}): ${gain}, ${phase}, ${delay}, Ms ${formatReal(m.sensitivityPeak, 4)}`);
+    if (m.stateFeedbackLoop) lines.push(`    (state-feedback loop alone: gain ${m.stateFeedbackLoop.gainDb === null ? "unbounded" : optional(m.stateFeedbackLoop.gainDb, " dB")}, phase ${m.stateFeedbackLoop.phaseDeg === null ? "unbounded" : optional(m.stateFeedbackLoop.phaseDeg, "°")})`);
   }
   if (v.step) {
     const s = v.step;

@@ -109,6 +109,20 @@ describe("loopwright design on the example projects", () => {
     }
   });
 
+  it("words missing margins as unbounded: L = 1/(s + 1) under unity feedback has no phase crossover and meets |L| = 1 only at ω = 0", async () => {
+    // Hand-derived: |L(jω)| = 1/√(1 + ω²) ≤ 1 with equality at ω = 0 where ∠L = 0 (phase margin
+    // 180°), ∠L > −90° everywhere (no phase crossover), and a delay leaves L(0) unchanged.
+    const project = JSON.stringify({
+      format: "loopwright-project", version: 1, name: "unity loop (test)",
+      plants: [{ id: "lag", model: { type: "transfer-function", numerator: [1], denominator: [1, 1], sampleTime: null } }],
+      variants: [{ id: "v", plant: "lag", stateFeedback: { method: "poles", poles: [-2] }, margins: { feedback: "unity-negative" } }],
+    });
+    let out = "";
+    const code = await runCli(["design", "unity.json"], { stdout: (t) => { out += t; }, stderr: () => {}, readFile: async () => project });
+    expect(code).toBe(0);
+    expect(out).toMatch(/margins \(unity negative feedback\): gain unbounded \(no phase crossover\), phase 180° at 0 rad\/s, delay unbounded, Ms 1\n/);
+  });
+
   it("designs only the named variant with --variant, and exits 1 for an unknown one", async () => {
     const one = await cli(["design", `${EXAMPLES}/queue-backlog.loopwright.json`, "--variant", "lqr-kalman", "--json"]);
     expect((JSON.parse(one.out) as DesignRunResult).variants.map((v) => v.id)).toEqual(["lqr-kalman"]);
