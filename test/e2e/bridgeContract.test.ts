@@ -37,6 +37,29 @@ async function inPage(page: Page, method: string, params: unknown): Promise<Outc
   );
 }
 
+/** Paths of the frequencies at which a peak (|S|, |T|, |S − ½|) was located by a search. */
+const PEAK_FREQUENCY = /(?:Peak|diskMargin)\.frequencyRadPerSec$/;
+
+/** A deep copy of `value` with the peak frequencies set to 0, and those frequencies by path. */
+function withoutPeakFrequencies(value: unknown): [unknown, Record<string, number>] {
+  const peaks: Record<string, number> = {};
+  const strip = (v: unknown, path: string): unknown => {
+    if (Array.isArray(v)) return v.map((x, i) => strip(x, `${path}[${i}]`));
+    if (v !== null && typeof v === "object") {
+      return Object.fromEntries(Object.entries(v).map(([k, x]) => {
+        const p = `${path}.${k}`;
+        if (typeof x === "number" && PEAK_FREQUENCY.test(p)) {
+          peaks[p] = x;
+          return [k, 0];
+        }
+        return [k, strip(x, p)];
+      }));
+    }
+    return v;
+  };
+  return [strip(value, "$"), peaks];
+}
+
 let server: StaticServer;
 let profileDir: string;
 let context: BrowserContext;
@@ -64,8 +87,14 @@ describe("bridge contract through the browser-mode Web Worker", () => {
     const [page_, node] = [await inPage(page, testCase.method, testCase.params), await inNode(testCase.method, testCase.params)];
     // Same engine code, two JavaScript engines: Node's V8 and Chromium's V8 are different
     // versions whose Math functions may differ in the last bit, so numbers match to 1e-12
-    // relative; everything else (kinds, messages, shapes, nulls) must be identical.
-    expectDeepClose(page_, node, 1e-12);
+    // relative; everything else (kinds, messages, shapes, nulls) must be identical. The one
+    // exception is where a maximum lies: at a smooth peak f(ω*(1 + δ)) − f(ω*) ∝ δ², so the
+    // maximiser is determined only to about √ε relative (common practice), and last-bit
+    // differences move it by ~1e-9 while the peak value still agrees to 1e-12.
+    const [pageRest, pagePeaks] = withoutPeakFrequencies(page_);
+    const [nodeRest, nodePeaks] = withoutPeakFrequencies(node);
+    expectDeepClose(pageRest, nodeRest, 1e-12);
+    expectDeepClose(pagePeaks, nodePeaks, 1e-7);
     expect(page_.ok).toBe(testCase.expected.ok);
     if (!page_.ok && !testCase.expected.ok) expect(page_.error.kind).toBe(testCase.expected.kind);
     if (page_.ok && testCase.expectedEigenvalues) {
