@@ -56,19 +56,19 @@ describe("zeros-poles-gain grid in browser mode", () => {
       await size.getByRole("button", { name: "Apply sizes" }).click();
       const grid = page.getByTestId("zpk-grid");
       await grid.waitFor();
-      // The single entry moved to (y1, u1); new pairs start uncoupled.
-      expect(await page.getByLabel("Poles u1 → y1", { exact: true }).inputValue()).toBe("-1");
-      expect(await page.getByLabel("Gain u2 → y1", { exact: true }).inputValue()).toBe("0");
+      // The single entry moved to (y1, u1), keeping the state-space plant's input and output names; new pairs start uncoupled.
+      expect(await page.getByLabel("Poles requested_consumers → backlog", { exact: true }).inputValue()).toBe("-1");
+      expect(await page.getByLabel("Gain u2 → backlog", { exact: true }).inputValue()).toBe("0");
 
       // G21 = 1.5(s + 3)/(s² + 2s + 5), G22 = −0.8.
-      await enter(page, "Poles u1 → y2", "-1±2i");
-      await enter(page, "Zeros u1 → y2", "-3");
-      await enter(page, "Gain u1 → y2", "1.5");
+      await enter(page, "Poles requested_consumers → y2", "-1±2i");
+      await enter(page, "Zeros requested_consumers → y2", "-3");
+      await enter(page, "Gain requested_consumers → y2", "1.5");
       await enter(page, "Gain u2 → y2", "-0.8");
-      await expect.poll(() => page.getByLabel("Poles u1 → y2", { exact: true }).inputValue()).toBe("-1+2i, -1-2i");
+      await expect.poll(() => page.getByLabel("Poles requested_consumers → y2", { exact: true }).inputValue()).toBe("-1+2i, -1-2i");
 
       // A pole without its conjugate is kept, marked and explained; the model keeps the last valid list.
-      const lone = page.getByLabel("Poles u2 → y1", { exact: true });
+      const lone = page.getByLabel("Poles u2 → backlog", { exact: true });
       await lone.fill("-2+1i");
       await lone.press("Enter");
       await expect.poll(() => lone.getAttribute("aria-invalid")).toBe("true");
@@ -90,7 +90,7 @@ describe("zeros-poles-gain grid in browser mode", () => {
       await expect.poll(() => first.getAttribute("aria-invalid")).toBe("true");
       expect(await first.inputValue()).toBe("humidity");
       await enter(page, "Name of output 1", "temperature");
-      await page.getByLabel("Gain u1 → temperature", { exact: true }).waitFor();
+      await page.getByLabel("Gain requested_consumers → temperature", { exact: true }).waitFor();
 
       await expect.poll(() => page.getByTestId("save-status").textContent(), { timeout: 10_000 }).toMatch(/^Saved/);
       await grid.scrollIntoViewIfNeeded();
@@ -99,9 +99,9 @@ describe("zeros-poles-gain grid in browser mode", () => {
       await page.reload();
       await openLinearPlant(page);
       await page.getByTestId("zpk-grid").waitFor();
-      expect(await page.getByLabel("Poles u1 → humidity", { exact: true }).inputValue()).toBe("-1+2i, -1-2i");
-      expect(await page.getByLabel("Zeros u1 → humidity", { exact: true }).inputValue()).toBe("-3");
-      expect(await page.getByLabel("Gain u1 → humidity", { exact: true }).inputValue()).toBe("1.5");
+      expect(await page.getByLabel("Poles requested_consumers → humidity", { exact: true }).inputValue()).toBe("-1+2i, -1-2i");
+      expect(await page.getByLabel("Zeros requested_consumers → humidity", { exact: true }).inputValue()).toBe("-3");
+      expect(await page.getByLabel("Gain requested_consumers → humidity", { exact: true }).inputValue()).toBe("1.5");
       expect(await page.getByLabel("Gain u2 → humidity", { exact: true }).inputValue()).toBe("-0.8");
       expect(await page.getByLabel("Poles u2 → temperature", { exact: true }).inputValue()).toBe("-2+1i, -2-1i");
       expect(await page.getByLabel("Name of output 2", { exact: true }).inputValue()).toBe("humidity");

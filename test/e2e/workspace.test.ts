@@ -116,13 +116,13 @@ describe("design workspace in browser mode", () => {
       await size.getByLabel("Inputs").fill("2");
       await size.getByRole("button", { name: "Apply sizes" }).click();
       await page.getByTestId("tf-grid").waitFor();
-      // The SISO entry moved to (y1, u1); new pairs start as 0 over 1.
-      expect(await page.getByLabel("Denominator u1 → y1").inputValue()).toBe("1 1");
-      expect(await page.getByLabel("Numerator u2 → y1").inputValue()).toBe("0");
-      const num = page.getByLabel("Numerator u1 → y2");
+      // The SISO entry moved to (y1, u1), keeping the state-space plant's input and output names; new pairs start as 0 over 1.
+      expect(await page.getByLabel("Denominator requested_consumers → backlog").inputValue()).toBe("1 1");
+      expect(await page.getByLabel("Numerator u2 → backlog").inputValue()).toBe("0");
+      const num = page.getByLabel("Numerator requested_consumers → y2");
       await num.fill("0.5");
       await num.press("Enter");
-      const den = page.getByLabel("Denominator u1 → y2");
+      const den = page.getByLabel("Denominator requested_consumers → y2");
       await den.fill("1 0 4");
       await den.press("Enter");
       // A bad denominator is kept, marked and explained; the model keeps the last valid one.
@@ -143,8 +143,8 @@ describe("design workspace in browser mode", () => {
       await page.getByRole("tab", { name: "Plant" }).click();
       await page.locator("#plant-select").selectOption("queue-linear");
       await page.getByTestId("tf-grid").waitFor();
-      expect(await page.getByLabel("Denominator u1 → y2").inputValue()).toBe("1 0 4");
-      expect(await page.getByLabel("Numerator u1 → y2").inputValue()).toBe("0.5");
+      expect(await page.getByLabel("Denominator requested_consumers → y2").inputValue()).toBe("1 0 4");
+      expect(await page.getByLabel("Numerator requested_consumers → y2").inputValue()).toBe("0.5");
       expect(await page.getByLabel("Denominator u2 → y2").inputValue()).toBe("1 2");
       expect(problems).toEqual([]);
     } finally {

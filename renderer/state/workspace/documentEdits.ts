@@ -2,11 +2,13 @@
  * Pure edits of the project document (format "loopwright-project"): each takes a document and
  * returns a new one, never changing its input, so the workspace can keep before/after pairs for
  * undo. Edits keep the document consistent: resizing a plant resizes its signal names, units and
- * the weights, poles and noise matrices of every variant built on it; renaming an output renames
- * it where integral action refers to it.
+ * the weights, poles and noise matrices of every variant built on it and prunes what names a
+ * signal that is gone; renaming a signal renames it wherever a variant refers to it
+ * (variantSignals.ts).
  */
 import type { PlantSpec, ProjectFile, VariantSpec } from "../../../shared-engine/api/contract";
 import { transferFunctionSize } from "./transferFunctionGrid";
+import { pruneVariantSignals, refitVariants, renameInVariants, resizeSignalWeights, type PlantSignals, type ReportedEdit } from "./variantSignals";
 import { zeroPoleGainSize } from "./zeroPoleGainGrid";
 
 // The document's part types, derived from the bridge contract (the renderer imports no other engine module).
@@ -175,10 +177,15 @@ function freshName(kind: SignalKind, index: number, taken: readonly string[]): s
 /**
  * Changes the plant's dimensions: matrices keep their top-left block and gain zero rows and
  * columns; new signals get fresh names and empty units; variants of this plant get identity
- * weights, poles −1, −2, … and identity noise for the new entries; integral action loses
- * outputs that no longer exist.
+ * weights, poles −1, −2, … and identity noise for the new entries, and lose what names a signal
+ * that no longer exists (integral action on a removed output, the step of a removed disturbance;
+ * pruneVariantSignals). `resizePlantReporting` also lists what it pruned.
  */
 export function resizePlant(doc: ProjectFile, plantId: string, dims: PlantDimensions): ProjectFile {
+  return resizePlantReporting(doc, plantId, dims).document;
+}
+
+export function resizePlantReporting(doc: ProjectFile, plantId: string, dims: PlantDimensions): ReportedEdit {
   for (const kind of ["states", "inputs", "outputs"] as const) {
     if (!Number.isInteger(dims[kind]) || dims[kind] < 1 || dims[kind] > 60) throw new Error(`The number of ${kind} must be a whole number from 1 to 60; got ${dims[kind]}.`);
   }
@@ -211,11 +218,22 @@ export function resizePlant(doc: ProjectFile, plantId: string, dims: PlantDimens
   }
   if (!next.names) delete next.names;
   if (!next.units) delete next.units;
-  const newOutputNames = signalNames(next.names, "outputs", p);
+  const signals = linearPlantSignals(next);
   const changed = replacePlant(doc, plantId, (pl) => ({ ...pl, model: next }));
+  return refitVariants(changed, plantId, (v) => {
+    resizeStateWeights(v, n);
+    resizeSignalWeights(v, signals);
+    return pruneVariantSignals(v, signals);
+  });
+}
+
+/** The inputs, output names and disturbance names a linear plant offers its variants. */
+export function linearPlantSignals(model: LinearModelSpec): PlantSignals {
+  const dims = linearSignalCounts(model);
   return {
-    ...changed,
-    variants: changed.variants.map((v) => (v.plant === plantId ? resizeVariant(structuredClone(v), dims, newOutputNames) : v)),
+    inputs: dims.inputs,
+    outputs: signalNames(model.names, "outputs", dims.outputs),
+    disturbances: model.type === "state-space" ? signalNames(model.names, "disturbances", dims.disturbances) : [],
   };
 }
 
@@ -223,40 +241,24 @@ function defaultPoles(count: number, offset = 0): { re: number; im: number }[] {
   return Array.from({ length: count }, (_, i) => ({ re: -(i + 1 + offset), im: 0 }));
 }
 
-function resizeVariant(v: VariantSpec, dims: PlantDimensions, outputNames: string[]): VariantSpec {
-  const { states: n, inputs: m, outputs: p, disturbances: d } = dims;
+// The variant's state-sized entries (Q, N's rows, placed and observer poles) follow n states.
+function resizeStateWeights(v: VariantSpec, n: number): void {
   if (v.stateFeedback?.method === "lqr") {
-    v.stateFeedback = { ...v.stateFeedback, Q: resizeMatrix(v.stateFeedback.Q, n, n, identityFill), R: resizeMatrix(v.stateFeedback.R, m, m, identityFill) };
-    if (v.stateFeedback.N) v.stateFeedback.N = resizeMatrix(v.stateFeedback.N, n, m);
+    v.stateFeedback = { ...v.stateFeedback, Q: resizeMatrix(v.stateFeedback.Q, n, n, identityFill) };
+    if (v.stateFeedback.N) v.stateFeedback.N = resizeMatrix(v.stateFeedback.N, n, v.stateFeedback.N[0]?.length ?? 0);
   } else if (v.stateFeedback?.method === "poles") {
     v.stateFeedback = { method: "poles", poles: resizeList(v.stateFeedback.poles, n, (i) => ({ re: -(i + 1), im: 0 })) };
   }
   if (v.observer?.method === "poles") {
     v.observer = { method: "poles", poles: resizeList(v.observer.poles, n, (i) => ({ re: -2 * (i + 1), im: 0 })) };
-  } else if (v.observer?.method === "kalman") {
-    const w = d > 0 ? d : m;
-    v.observer = { ...v.observer, processNoise: resizeMatrix(v.observer.processNoise, w, w, identityFill), measurementNoise: resizeMatrix(v.observer.measurementNoise, p, p, identityFill) };
   }
-  if (v.integralAction) {
-    const keep = v.integralAction.outputs
-      .map((o, k) => ({ o, k }))
-      .filter(({ o }) => (typeof o === "number" ? o < p : outputNames.includes(o)))
-      .slice(0, m);
-    if (keep.length === 0) delete v.integralAction;
-    else {
-      const ia = v.integralAction;
-      v.integralAction = { ...ia, outputs: keep.map(({ o }) => o) };
-      if (ia.weights) v.integralAction.weights = keep.map(({ k }) => ia.weights![k] ?? 1);
-      if (ia.poles) v.integralAction.poles = keep.map(({ k }) => ia.poles![k] ?? -1);
-    }
-  }
-  return v;
 }
 
 /**
  * Renames one signal of a linear plant (state space: any kind; transfer function and
  * zero-pole-gain: inputs and outputs). Names must be unique within their kind, non-empty and
- * identifiers; integral action of every variant of this plant follows an output's new name.
+ * identifiers; every variant of this plant follows the new name (integral action on an output,
+ * the step of a disturbance: renameInVariants).
  */
 export function renameSignal(doc: ProjectFile, plantId: string, kind: SignalKind, index: number, name: string): ProjectFile {
   const trimmed = name.trim();
@@ -288,13 +290,7 @@ export function renameSignal(doc: ProjectFile, plantId: string, kind: SignalKind
           [kind]: names,
         };
   const changed = replacePlant(doc, plantId, (p) => ({ ...p, model: { ...requireLinear(p), names: allNames } }));
-  if (kind !== "outputs") return changed;
-  return {
-    ...changed,
-    variants: changed.variants.map((v) =>
-      v.plant === plantId && v.integralAction ? { ...v, integralAction: { ...v.integralAction, outputs: v.integralAction.outputs.map((o) => (o === old ? trimmed : o)) } } : v,
-    ),
-  };
+  return renameInVariants(changed, plantId, kind, old, trimmed);
 }
 
 // Transfer-function and zero-pole-gain plants name only their inputs and outputs.

@@ -9,3 +9,5 @@ export * from "./nonlinearTasks";
 export * from "./locusState";
 export * from "./transferFunctionGrid";
 export * from "./zeroPoleGainGrid";
+export * from "./variantSignals";
+export * from "./plantFormEdits";

@@ -11,6 +11,7 @@
  */
 import type { EngineBridge, EquationProblem, LinearizeResult, NonlinearPlantSpec, OperatingPointRequest, OperatingPointResult, PlantSpec, ProjectFile } from "../../../shared-engine/api/contract";
 import { parseNumberText } from "./parseMatrixText";
+import { editReporting, refitVariants, renameInVariants } from "./variantSignals";
 import type { WorkspaceStore } from "./workspaceStore";
 
 type NonlinearModel = Extract<PlantSpec["model"], { type: "nonlinear" }>;
@@ -53,17 +54,17 @@ const renameKey = (record: Record<string, number> | undefined, from: string, to:
 
 export const nonlinearFieldKey = (plantId: string, table: NonlinearTable | "outputs", index: number, column: string): string => `${plantId}:nl:${table}:${index}:${column}`;
 
-/** Renames a row (a state's equation and operating-point entries follow its name). */
+/** Renames a row (a state's equation, operating-point entries and the variants' references follow its name). */
 export function renameNonlinearRow(store: WorkspaceStore, plantId: string, table: NonlinearTable | "outputs", index: number, text: string): boolean {
   const name = text.trim();
   return store.editText(nonlinearFieldKey(plantId, table, index, "name"), text, `renamed ${table === "outputs" ? "output" : table.slice(0, -1)} ${index + 1} of plant ${plantId} to ${name}`, () => {
     if (!/^[A-Za-z_][A-Za-z0-9_]*$/.test(name)) return { ok: false, error: "A name starts with a letter or _ and has only letters, digits and _ (it is used in the equations)." };
     return {
       ok: true,
-      apply: (doc) =>
-        updateModel(doc, plantId, (m) => {
+      apply: (doc) => {
+        const old = (nonlinearModelOf(doc, plantId)[table] as { name: string }[])[index]?.name;
+        const renamed = updateModel(doc, plantId, (m) => {
           const rows = m[table] as { name: string }[];
-          const old = rows[index]?.name;
           if (old === undefined) throw new Error(`Row ${index + 1} does not exist.`);
           if (old === name) return m;
           const all = [...m.states, ...m.inputs, ...m.disturbances, ...m.parameters, ...m.outputs].map((r) => r.name);
@@ -79,7 +80,10 @@ export function renameNonlinearRow(store: WorkspaceStore, plantId: string, table
           if (table === "states" || table === "inputs") m.operatingPoint.unknowns = m.operatingPoint.unknowns.map((u) => (u === old ? name : u));
           for (const key of Object.keys(m.operatingPoint) as (keyof OperatingPointRequest)[]) if (m.operatingPoint[key] === undefined) delete m.operatingPoint[key];
           return m;
-        }),
+        });
+        // Variants of the plant follow too (integral action, disturbance step, nonlinear-check scenario, robustness parameters).
+        return old === undefined ? renamed : renameInVariants(renamed, plantId, table, old, name);
+      },
     };
   });
 }
@@ -151,13 +155,21 @@ export function addParameter(store: WorkspaceStore, plantId: string): boolean {
   );
 }
 
+/** Removes a parameter; robustness sweeps of the plant's variants drop it (the undo label says so). */
 export function removeParameter(store: WorkspaceStore, plantId: string, index: number): boolean {
-  return store.edit(`removed parameter ${index + 1} of plant ${plantId}`, (doc) =>
-    updateModel(doc, plantId, (m) => {
+  return editReporting(store, `removed parameter ${index + 1} of plant ${plantId}`, (doc) => {
+    const name = nonlinearModelOf(doc, plantId).parameters[index]?.name;
+    const changed = updateModel(doc, plantId, (m) => {
       m.parameters = m.parameters.filter((_, i) => i !== index);
       return m;
-    }),
-  );
+    });
+    return refitVariants(changed, plantId, (v) => {
+      if (!v.robustness || !v.robustness.parameters.some((p) => p.name === name)) return [];
+      v.robustness = { ...v.robustness, parameters: v.robustness.parameters.filter((p) => p.name !== name) };
+      if (v.robustness.parameters.length === 0) delete v.robustness;
+      return [v.robustness ? `the parameter ${name} of the robustness sweep` : `the robustness sweep (${name} was its only parameter)`];
+    });
+  });
 }
 
 /** Operating point: toggles whether a state or input is solved for. */

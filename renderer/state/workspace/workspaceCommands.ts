@@ -4,6 +4,7 @@
  * call the same functions.
  */
 import type { ProjectFile, VariantSpec } from "../../../shared-engine/api/contract";
+import { formatCount } from "../../../shared-engine/format";
 import { asPole, brysonWeights, setPoleKeepingPairs, type Pole } from "./designHelpers";
 import {
   addVariant,
@@ -12,7 +13,7 @@ import {
   findVariant,
   removeVariant,
   renameSignal,
-  resizePlant,
+  resizePlantReporting,
   setMatrix,
   setMatrixEntry,
   setModel,
@@ -25,8 +26,9 @@ import {
   type SignalKind,
 } from "./documentEdits";
 import { parseMatrixText } from "./parseMatrixText";
-import { resizeTransferFunction } from "./transferFunctionGrid";
-import { parseZeroPoleGainPart, resizeZeroPoleGain, withZeroPoleGainEntry, type ZeroPoleGainEntry } from "./zeroPoleGainGrid";
+import { resizeEntryGridPlant, switchModelForm } from "./plantFormEdits";
+import { editReporting } from "./variantSignals";
+import { parseZeroPoleGainPart, withZeroPoleGainEntry, type ZeroPoleGainEntry } from "./zeroPoleGainGrid";
 import type { WorkspaceStore } from "./workspaceStore";
 
 export const cellKey = (plantId: string, name: MatrixName, row: number, column: number): string => `${plantId}:${name}:${row}:${column}`;
@@ -46,9 +48,10 @@ export function pasteMatrix(store: WorkspaceStore, plantId: string, name: Matrix
   });
 }
 
+/** Resizes a state-space plant (resizePlant); the undo label names what its variants lost. */
 export function resizeDimensions(store: WorkspaceStore, plantId: string, dims: PlantDimensions): boolean {
-  return store.edit(`changed plant ${plantId} to ${dims.states} states, ${dims.inputs} inputs, ${dims.outputs} outputs, ${dims.disturbances} disturbances`, (doc) =>
-    resizePlant(doc, plantId, dims),
+  return editReporting(store, `changed plant ${plantId} to ${formatCount(dims.states, "state")}, ${formatCount(dims.inputs, "input")}, ${formatCount(dims.outputs, "output")}, ${formatCount(dims.disturbances, "disturbance")}`, (doc) =>
+    resizePlantReporting(doc, plantId, dims),
   );
 }
 
@@ -70,16 +73,21 @@ export function setModelCommand(store: WorkspaceStore, plantId: string, model: M
 }
 
 /**
+ * Switches the plant to another model form, starting from `model`: input and output names and
+ * units stay when the counts match, and the variants are refitted (switchModelForm); the undo
+ * label names what they lost.
+ */
+export function switchModelFormCommand(store: WorkspaceStore, plantId: string, model: ModelSpec, what: string): boolean {
+  return editReporting(store, `${what} of plant ${plantId}`, (doc) => switchModelForm(doc, plantId, model));
+}
+
+/**
  * Outputs × inputs of a transfer-function or zero-pole-gain plant: entries that remain are kept,
- * new pairs start uncoupled, names and units follow (resizeTransferFunction, resizeZeroPoleGain).
+ * new pairs start uncoupled, names and units follow, and the variants are refitted
+ * (resizeEntryGridPlant); the undo label names what they lost.
  */
 export function resizeEntryGrid(store: WorkspaceStore, plantId: string, outputs: number, inputs: number): boolean {
-  return store.edit(`changed plant ${plantId} to ${outputs} outputs and ${inputs} inputs`, (doc) => {
-    const model = findPlant(doc, plantId).model;
-    if (model.type === "transfer-function") return setModel(doc, plantId, resizeTransferFunction(model, outputs, inputs));
-    if (model.type === "zero-pole-gain") return setModel(doc, plantId, resizeZeroPoleGain(model, outputs, inputs));
-    throw new Error(`Plant “${plantId}” is not entered per (output, input) pair; switch it to transfer functions or zeros, poles and gain first.`);
-  });
+  return editReporting(store, `changed plant ${plantId} to ${formatCount(outputs, "output")} and ${formatCount(inputs, "input")}`, (doc) => resizeEntryGridPlant(doc, plantId, outputs, inputs));
 }
 
 /** The field name of one part of a zero-pole-gain entry; its draft key is `${plantId}:${field}`. */
