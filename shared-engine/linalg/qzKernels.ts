@@ -98,6 +98,47 @@ export function house3(alpha: number, x1: number, x2: number): void {
   refl[4] = beta;
 }
 
+/**
+ * Scratch for `reflectorEntries`: the entries of a symmetric 3×3 reflector H in the order
+ * [h00, h11, h22, h01, h02, h12] (indices: slot of x1, slot of x2, slot of alpha).
+ */
+export const reflectorH = new Float64Array(6);
+
+/**
+ * The explicit entries of the 3×3 Householder reflector H = I − τ·v·vᵀ of `house3(alpha, x1,
+ * x2)` (which maps (x1, x2, alpha), in this slot order, to (0, 0, β)), each with full relative
+ * accuracy, written to `reflectorH`; `beta` must be that of `house3` (alpha when x1 = x2 = 0).
+ *
+ * Why: when |alpha| ≪ ‖(x1, x2)‖ the reflector is close to a permutation, and x − τ·v·(vᵀx)
+ * then computes a small result as the difference of large terms: an error of ε·max|x_i| lands
+ * in an entry that may be many orders of magnitude smaller (the grading of a graded pencil is
+ * lost). The explicit entries below have no cancellation (with ν = ‖(alpha, x1, x2)‖,
+ * a = |alpha|/ν, p = x1/ν, q = x2/ν, σ = sign(β)):
+ *   h00 = 1 − τ·v1² = a + q²/(1 + a),  h11 = a + p²/(1 + a),  h22 = 1 − τ = alpha/β = −a,
+ *   h01 = −p·q/(1 + a),  h02 = x1/β = σ·p,  h12 = σ·q,
+ * (derived from ‖x − β·e‖² = 2β(β − alpha) = 2ν(ν + |alpha|); no citation), so H·x computed
+ * entrywise has error ε·Σ_j |h_ij|·|x_j| per entry, as a product of rotations would.
+ */
+export function reflectorEntries(alpha: number, x1: number, x2: number, beta: number): void {
+  const h = reflectorH;
+  if (beta === alpha) {
+    h[0] = 1; h[1] = 1; h[2] = 1; h[3] = 0; h[4] = 0; h[5] = 0;
+    return;
+  }
+  // 1/ν and 1/(1 + a) = ν/(ν + |alpha|) are independent divisions (they overlap); the products
+  // by 1/ν are replaced by quotients only for a subnormal ν, where 1/ν would overflow.
+  const nu = Math.abs(beta), inv = 1 / nu, f = nu / (nu + Math.abs(alpha));
+  let a: number, p: number, q: number;
+  if (nu > 1e-300) {
+    a = Math.abs(alpha) * inv; p = x1 * inv; q = x2 * inv;
+  } else {
+    a = Math.abs(alpha) / nu; p = x1 / nu; q = x2 / nu;
+  }
+  const sp = beta > 0 ? p : -p, sq = beta > 0 ? q : -q;
+  h[0] = a + q * q * f; h[1] = a + p * p * f; h[2] = -a;
+  h[3] = -(p * q * f); h[4] = sp; h[5] = sq;
+}
+
 /** Scratch for `eigenvalues2x2`: [re1, im1, re2, im2]; im1 ≥ 0 and im2 = −im1. */
 export const eig2 = new Float64Array(4);
 

@@ -14,7 +14,9 @@ import type { PencilWork } from "./qzKernels";
  * A pair's work splits into its near block (rows k..k+4, columns k..k+3, held in locals: a chain
  * of dependent square roots and divisions, latency-bound) and its long loops (the far columns of
  * rows k..k+3 and rows k..k+3 of Qᵀ take P1 then P2 in one pass; the rows above the bulge and
- * rows k..k+3 of Zᵀ take W1·W2 as one 4×4 matrix). The near block of pair k+2 needs from pair k
+ * rows k..k+3 of Zᵀ take W1·W2 as one 4×4 matrix). H1 and H2 act by their explicit entries
+ * (full relative accuracy, see qzSweep.ts on graded pencils), in the near block and in W1·W2.
+ * The near block of pair k+2 needs from pair k
  * only its near block and its far columns k+4, k+5, so after those two columns it is computed
  * in four pieces placed between pair k's long loops, where the processor can run a loop while
  * the square root or division just issued is pending (measured: about 4 % less time at n = 10
@@ -50,7 +52,9 @@ export function chasePairs(w: PencilWork, k0: number, kEnd: number, rowStart: nu
     let t00 = 0, t01 = 0, t02 = 0, t03 = 0, t10 = 0, t11 = 0, t12 = 0, t13 = 0, t21 = 0, t22 = 0, t23 = 0;
     let t31 = 0, t32 = 0, t33 = 0;
     let na = 0, na1 = 0, na2 = 0, nb = 0, nb1 = 0, nb2 = 0;
-    let tu = 0, u0 = 0, u1 = 0, c1 = 0, sn1 = 0, tv = 0, v0 = 0, v1 = 0, c2 = 0, sn2 = 0;
+    // H1 and H2 by their explicit entries (`reflectorEntries`; identity until computed).
+    let h00 = 1, h11 = 1, h22 = 1, h01 = 0, h02 = 0, h12 = 0, c1 = 0, sn1 = 0;
+    let e11 = 1, e22 = 1, e33 = 1, e12 = 0, e13 = 0, e23 = 0, c2 = 0, sn2 = 0;
     let beta = 0, gf = 0, gg = 0;
     if (next) {
       na = pa; na1 = pa1; na2 = pa2;
@@ -88,12 +92,21 @@ export function chasePairs(w: PencilWork, k0: number, kEnd: number, rowStart: nu
         if (!(nrm > 1e-150 && nrm < 1e150)) nrm = Math.hypot(t22, t20, t21);
         beta = t20 === 0 && t21 === 0 ? t22 : t22 >= 0 ? -nrm : nrm;
       }
+      // Explicit entries, not x − τ·v·(vᵀx): no cancellation when H1 is close to a
+      // permutation (graded pencils, see qzSweep.ts).
+      // (`reflectorEntries` written out: no call or scratch array on this dependency chain.)
       if (beta !== t22) {
-        const sc = 1 / (t22 - beta);
-        tu = (beta - t22) / beta; u0 = t20 * sc; u1 = t21 * sc;
+        const nu = Math.abs(beta), inv = 1 / nu, f = nu / (nu + Math.abs(t22));
+        let a: number, p: number, q: number;
+        if (nu > 1e-300) {
+          a = Math.abs(t22) * inv; p = t20 * inv; q = t21 * inv;
+        } else {
+          a = Math.abs(t22) / nu; p = t20 / nu; q = t21 / nu;
+        }
+        h00 = a + q * q * f; h11 = a + p * p * f; h22 = -a; h01 = -(p * q * f);
+        h02 = beta > 0 ? p : -p; h12 = beta > 0 ? q : -q;
       }
-      const wv = tu * (u0 * t10 + u1 * t11 + t12);
-      gf = t11 - wv * u1; gg = t10 - wv * u0;
+      gf = h01 * t10 + h11 * t11 + h12 * t12; gg = h00 * t10 + h01 * t11 + h02 * t12;
     }
     // (3) Current pair: the remaining far columns.
     if (cur) {
@@ -119,25 +132,23 @@ export function chasePairs(w: PencilWork, k0: number, kEnd: number, rowStart: nu
         }
       }
       t22 = beta;
-      let wv = tu * (u0 * s00 + u1 * s01 + s02);
-      let y0 = s00 - wv * u0, y1 = s01 - wv * u1;
-      s00 = c1 * y0 - sn1 * y1; s01 = c1 * y1 + sn1 * y0; s02 -= wv;
-      wv = tu * (u0 * t00 + u1 * t01 + t02);
-      y0 = t00 - wv * u0; y1 = t01 - wv * u1;
-      t00 = c1 * y0 - sn1 * y1; t01 = c1 * y1 + sn1 * y0; t02 -= wv;
-      wv = tu * (u0 * s10 + u1 * s11 + s12);
-      y0 = s10 - wv * u0; y1 = s11 - wv * u1;
-      s10 = c1 * y0 - sn1 * y1; s11 = c1 * y1 + sn1 * y0; s12 -= wv;
-      wv = tu * (u0 * t10 + u1 * t11 + t12); // t10 becomes 0
-      y1 = t11 - wv * u1;
-      t11 = c1 * y1 + sn1 * (t10 - wv * u0); t12 -= wv;
-      wv = tu * (u0 * s20 + u1 * s21 + s22);
-      y0 = s20 - wv * u0; y1 = s21 - wv * u1;
-      s20 = c1 * y0 - sn1 * y1; s21 = c1 * y1 + sn1 * y0; s22 -= wv;
-      wv = tu * s32; // row kn+3 of S is (0, 0, s32) on these columns
-      y0 = -(wv * u0); y1 = -(wv * u1);
+      let y0 = h00 * s00 + h01 * s01 + h02 * s02, y1 = h01 * s00 + h11 * s01 + h12 * s02;
+      s02 = h02 * s00 + h12 * s01 + h22 * s02;
+      s00 = c1 * y0 - sn1 * y1; s01 = c1 * y1 + sn1 * y0;
+      y0 = h00 * t00 + h01 * t01 + h02 * t02; y1 = h01 * t00 + h11 * t01 + h12 * t02;
+      t02 = h02 * t00 + h12 * t01 + h22 * t02;
+      t00 = c1 * y0 - sn1 * y1; t01 = c1 * y1 + sn1 * y0;
+      y0 = h00 * s10 + h01 * s11 + h02 * s12; y1 = h01 * s10 + h11 * s11 + h12 * s12;
+      s12 = h02 * s10 + h12 * s11 + h22 * s12;
+      s10 = c1 * y0 - sn1 * y1; s11 = c1 * y1 + sn1 * y0;
+      t12 = h02 * t10 + h12 * t11 + h22 * t12; // t10 becomes 0; (gf, gg) is row kn+1 after H1
+      t11 = c1 * gf + sn1 * gg;
+      y0 = h00 * s20 + h01 * s21 + h02 * s22; y1 = h01 * s20 + h11 * s21 + h12 * s22;
+      s22 = h02 * s20 + h12 * s21 + h22 * s22;
+      s20 = c1 * y0 - sn1 * y1; s21 = c1 * y1 + sn1 * y0;
+      y0 = h02 * s32; y1 = h12 * s32; // row kn+3 of S is (0, 0, s32) on these columns
       s30 = c1 * y0 - sn1 * y1; s31 = c1 * y1 + sn1 * y0;
-      s32 -= wv;
+      s32 = h22 * s32;
       {
         let nrm = Math.sqrt(s10 * s10 + s20 * s20 + s30 * s30);
         if (!(nrm > 1e-150 && nrm < 1e150)) nrm = Math.hypot(s10, s20, s30);
@@ -187,11 +198,17 @@ export function chasePairs(w: PencilWork, k0: number, kEnd: number, rowStart: nu
         beta = t31 === 0 && t32 === 0 ? t33 : t33 >= 0 ? -nrm : nrm;
       }
       if (beta !== t33) {
-        const sc = 1 / (t33 - beta);
-        tv = (beta - t33) / beta; v0 = t31 * sc; v1 = t32 * sc;
+        const nu = Math.abs(beta), inv = 1 / nu, f = nu / (nu + Math.abs(t33));
+        let a: number, p: number, q: number;
+        if (nu > 1e-300) {
+          a = Math.abs(t33) * inv; p = t31 * inv; q = t32 * inv;
+        } else {
+          a = Math.abs(t33) / nu; p = t31 / nu; q = t32 / nu;
+        }
+        e11 = a + q * q * f; e22 = a + p * p * f; e33 = -a; e12 = -(p * q * f);
+        e13 = beta > 0 ? p : -p; e23 = beta > 0 ? q : -q;
       }
-      const wv = tv * (v0 * t21 + v1 * t22 + t23);
-      gf = t22 - wv * v1; gg = t21 - wv * v0;
+      gf = e12 * t21 + e22 * t22 + e23 * t23; gg = e11 * t21 + e12 * t22 + e13 * t23;
     }
     // (7) Current pair: Qᵀ rows kc..kc+3 ← P2·P1·Qᵀ and Zᵀ rows ← (W1·W2)ᵀ·Zᵀ, in one loop.
     if (cur && QT && ZT) {
@@ -222,31 +239,29 @@ export function chasePairs(w: PencilWork, k0: number, kEnd: number, rowStart: nu
         }
       }
       t33 = beta;
-      let wv = tv * (v0 * s01 + v1 * s02 + s03);
-      let y0 = s01 - wv * v0, y1 = s02 - wv * v1;
-      s01 = c2 * y0 - sn2 * y1; s02 = c2 * y1 + sn2 * y0; s03 -= wv;
-      wv = tv * (v0 * t01 + v1 * t02 + t03);
-      y0 = t01 - wv * v0; y1 = t02 - wv * v1;
-      t01 = c2 * y0 - sn2 * y1; t02 = c2 * y1 + sn2 * y0; t03 -= wv;
-      wv = tv * (v0 * s11 + v1 * s12 + s13);
-      y0 = s11 - wv * v0; y1 = s12 - wv * v1;
-      s11 = c2 * y0 - sn2 * y1; s12 = c2 * y1 + sn2 * y0; s13 -= wv;
-      wv = tv * (v0 * t11 + v1 * t12 + t13);
-      y0 = t11 - wv * v0; y1 = t12 - wv * v1;
-      t11 = c2 * y0 - sn2 * y1; t12 = c2 * y1 + sn2 * y0; t13 -= wv;
-      wv = tv * (v0 * s21 + v1 * s22 + s23);
-      y0 = s21 - wv * v0; y1 = s22 - wv * v1;
-      s21 = c2 * y0 - sn2 * y1; s22 = c2 * y1 + sn2 * y0; s23 -= wv;
-      wv = tv * (v0 * t21 + v1 * t22 + t23); // t21 becomes 0
-      y1 = t22 - wv * v1;
-      t22 = c2 * y1 + sn2 * (t21 - wv * v0); t23 -= wv;
-      wv = tv * (v0 * s31 + v1 * s32 + s33);
-      y0 = s31 - wv * v0; y1 = s32 - wv * v1;
-      s31 = c2 * y0 - sn2 * y1; s32 = c2 * y1 + sn2 * y0; s33 -= wv;
-      wv = tv * s43; // row kn+4 of S is (0, 0, s43) on these columns
-      y0 = -(wv * v0); y1 = -(wv * v1);
+      let y0 = e11 * s01 + e12 * s02 + e13 * s03, y1 = e12 * s01 + e22 * s02 + e23 * s03;
+      s03 = e13 * s01 + e23 * s02 + e33 * s03;
+      s01 = c2 * y0 - sn2 * y1; s02 = c2 * y1 + sn2 * y0;
+      y0 = e11 * t01 + e12 * t02 + e13 * t03; y1 = e12 * t01 + e22 * t02 + e23 * t03;
+      t03 = e13 * t01 + e23 * t02 + e33 * t03;
+      t01 = c2 * y0 - sn2 * y1; t02 = c2 * y1 + sn2 * y0;
+      y0 = e11 * s11 + e12 * s12 + e13 * s13; y1 = e12 * s11 + e22 * s12 + e23 * s13;
+      s13 = e13 * s11 + e23 * s12 + e33 * s13;
+      s11 = c2 * y0 - sn2 * y1; s12 = c2 * y1 + sn2 * y0;
+      y0 = e11 * t11 + e12 * t12 + e13 * t13; y1 = e12 * t11 + e22 * t12 + e23 * t13;
+      t13 = e13 * t11 + e23 * t12 + e33 * t13;
+      t11 = c2 * y0 - sn2 * y1; t12 = c2 * y1 + sn2 * y0;
+      y0 = e11 * s21 + e12 * s22 + e13 * s23; y1 = e12 * s21 + e22 * s22 + e23 * s23;
+      s23 = e13 * s21 + e23 * s22 + e33 * s23;
+      s21 = c2 * y0 - sn2 * y1; s22 = c2 * y1 + sn2 * y0;
+      t23 = e13 * t21 + e23 * t22 + e33 * t23; // t21 becomes 0; (gf, gg) is row kn+2 after H2
+      t22 = c2 * gf + sn2 * gg;
+      y0 = e11 * s31 + e12 * s32 + e13 * s33; y1 = e12 * s31 + e22 * s32 + e23 * s33;
+      s33 = e13 * s31 + e23 * s32 + e33 * s33;
+      s31 = c2 * y0 - sn2 * y1; s32 = c2 * y1 + sn2 * y0;
+      y0 = e13 * s43; y1 = e23 * s43; // row kn+4 of S is (0, 0, s43) on these columns
       s41 = c2 * y0 - sn2 * y1; s42 = c2 * y1 + sn2 * y0;
-      s43 -= wv;
+      s43 = e33 * s43;
       // The reflector of step kn+2 from column kn+1, rows kn+2..kn+4 (final now).
       {
         let nrm = Math.sqrt(s21 * s21 + s31 * s31 + s41 * s41);
@@ -283,20 +298,16 @@ export function chasePairs(w: PencilWork, k0: number, kEnd: number, rowStart: nu
     // The next pair becomes the current one.
     kc = kn;
     ta = na; a1 = na1; a2 = na2; tb = nb; b1 = nb1; b2 = nb2;
-    // W1 = H1·G1 (3×3): H1 = I − τ·u·uᵀ (u = (u0, u1, 1)), then G1 on its columns 0, 1; W2 likewise
-    // on entries 1..3; m = W1·W2 (rows: input entry, columns: output entry; m[3][0] = 0).
-    const g0 = tu * u0, g1 = tu * u1;
-    const h00 = 1 - g0 * u0, h01 = -(g0 * u1), h02 = -g0, h11 = 1 - g1 * u1, h12 = -g1, h22 = 1 - tu;
+    // W1 = H1·G1 (3×3): H1 by its entries, then G1 on its columns 0, 1; W2 likewise on entries
+    // 1..3; m = W1·W2 (rows: input entry, columns: output entry; m[3][0] = 0).
     const w01 = c1 * h01 + sn1 * h00, w11 = c1 * h11 + sn1 * h01, w21 = c1 * h12 + sn1 * h02;
     m00 = c1 * h00 - sn1 * h01; m10 = c1 * h01 - sn1 * h11; m20 = c1 * h02 - sn1 * h12;
-    const e0 = tv * v0, e1 = tv * v1;
-    const e11 = 1 - e0 * v0, e12 = -(e0 * v1), e13 = -e0, e22 = 1 - e1 * v1, e23 = -e1;
     const x11 = c2 * e11 - sn2 * e12, x12 = c2 * e12 + sn2 * e11;
     const x21 = c2 * e12 - sn2 * e22, x22 = c2 * e22 + sn2 * e12;
     m01 = w01 * x11 + h02 * x21; m02 = w01 * x12 + h02 * x22; m03 = w01 * e13 + h02 * e23;
     m11 = w11 * x11 + h12 * x21; m12 = w11 * x12 + h12 * x22; m13 = w11 * e13 + h12 * e23;
     m21 = w21 * x11 + h22 * x21; m22 = w21 * x12 + h22 * x22; m23 = w21 * e13 + h22 * e23;
-    m31 = c2 * e13 - sn2 * e23; m32 = c2 * e23 + sn2 * e13; m33 = 1 - tv;
+    m31 = c2 * e13 - sn2 * e23; m32 = c2 * e23 + sn2 * e13; m33 = e33;
   }
   pending[0] = pa; pending[1] = pa1; pending[2] = pa2;
 }

@@ -3,7 +3,12 @@
  * number of 3-row steps: the last one fused with the final 2-row step (qzSweepTailPair.ts has
  * the even case). Internal to linalg/.
  */
-import type { PencilWork } from "./qzKernels";
+import { type PencilWork, reflectorEntries as reflectorEntriesShared, reflectorH as reflectorHShared } from "./qzKernels";
+
+// Module-level aliases: read through an import binding, every access in the inner loops cost a
+// getter call under per-file CommonJS transpilation (tsx, vitest).
+const reflectorEntries = reflectorEntriesShared;
+const hq = reflectorHShared;
 
 /**
  * The last two steps, k = l−2 (3-row: P from `pending`, W = H·G) and l−1 (a rotation G2 on
@@ -38,36 +43,31 @@ export function sweepTail(w: PencilWork, k: number, rowStart: number, colEnd: nu
   d = t02 + a1 * t12 + a2 * t22;
   t02 -= ta * d; t12 -= ta1 * d; t22 -= ta2 * d;
   // W = H·G on columns k..k+2: rows k..k+2 of S, rows k, k+1 of T (row k+2 becomes (0, 0, β)).
-  // H maps T's row k+2 on columns k..k+2 to (0, 0, β) (house3(t22, t20, t21)); G zeroes the
-  // (k+1, k) entry of T's row k+1 after H.
-  let tu = 0, u0 = 0, u1 = 0;
-  {
-    const beta = reflectorBeta(t22, t20, t21);
-    if (beta !== t22) {
-      const sc = 1 / (t22 - beta);
-      tu = (beta - t22) / beta; u0 = t20 * sc; u1 = t21 * sc;
-    }
-    t22 = beta;
-  }
-  const wg = tu * (u0 * t10 + u1 * t11 + t12);
-  const gf = t11 - wg * u1, gg = t10 - wg * u0;
+  // H maps T's row k+2 on columns k..k+2 to (0, 0, β); G zeroes the (k+1, k) entry of T's row
+  // k+1 after H. H is applied as its explicit 3×3 matrix with entries of full relative accuracy
+  // (`reflectorEntries`), not as x − τ·v·(vᵀx): see qzSweep.ts on graded pencils.
+  const beta = reflectorBeta(t22, t20, t21);
+  reflectorEntries(t22, t20, t21, beta);
+  const h00 = hq[0], h11 = hq[1], h22 = hq[2], h01 = hq[3], h02 = hq[4], h12 = hq[5];
+  t22 = beta;
+  const gf = h01 * t10 + h11 * t11 + h12 * t12, gg = h00 * t10 + h01 * t11 + h02 * t12;
   const rg = givensRadius(gf, gg);
   const c1 = givensCos(gf, gg, rg), sn1 = givensSin(gf, gg, rg);
-  let wv = tu * (u0 * s00 + u1 * s01 + s02);
-  let y0 = s00 - wv * u0, y1 = s01 - wv * u1;
-  s00 = c1 * y0 - sn1 * y1; s01 = c1 * y1 + sn1 * y0; s02 -= wv;
-  wv = tu * (u0 * t00 + u1 * t01 + t02);
-  y0 = t00 - wv * u0; y1 = t01 - wv * u1;
-  t00 = c1 * y0 - sn1 * y1; t01 = c1 * y1 + sn1 * y0; t02 -= wv;
-  wv = tu * (u0 * s10 + u1 * s11 + s12);
-  y0 = s10 - wv * u0; y1 = s11 - wv * u1;
-  s10 = c1 * y0 - sn1 * y1; s11 = c1 * y1 + sn1 * y0; s12 -= wv;
-  wv = tu * (u0 * t10 + u1 * t11 + t12); // t10 becomes 0
-  y1 = t11 - wv * u1;
-  t11 = c1 * y1 + sn1 * (t10 - wv * u0); t12 -= wv;
-  wv = tu * (u0 * s20 + u1 * s21 + s22);
-  y0 = s20 - wv * u0; y1 = s21 - wv * u1;
-  s20 = c1 * y0 - sn1 * y1; s21 = c1 * y1 + sn1 * y0; s22 -= wv;
+  let y0 = h00 * s00 + h01 * s01 + h02 * s02, y1 = h01 * s00 + h11 * s01 + h12 * s02;
+  s02 = h02 * s00 + h12 * s01 + h22 * s02;
+  s00 = c1 * y0 - sn1 * y1; s01 = c1 * y1 + sn1 * y0;
+  y0 = h00 * t00 + h01 * t01 + h02 * t02; y1 = h01 * t00 + h11 * t01 + h12 * t02;
+  t02 = h02 * t00 + h12 * t01 + h22 * t02;
+  t00 = c1 * y0 - sn1 * y1; t01 = c1 * y1 + sn1 * y0;
+  y0 = h00 * s10 + h01 * s11 + h02 * s12; y1 = h01 * s10 + h11 * s11 + h12 * s12;
+  s12 = h02 * s10 + h12 * s11 + h22 * s12;
+  s10 = c1 * y0 - sn1 * y1; s11 = c1 * y1 + sn1 * y0;
+  // T's (k+1, k) entry becomes 0: (gf, gg) is the row after H.
+  t12 = h02 * t10 + h12 * t11 + h22 * t12;
+  t11 = c1 * gf + sn1 * gg;
+  y0 = h00 * s20 + h01 * s21 + h02 * s22; y1 = h01 * s20 + h11 * s21 + h12 * s22;
+  s22 = h02 * s20 + h12 * s21 + h22 * s22;
+  s20 = c1 * y0 - sn1 * y1; s21 = c1 * y1 + sn1 * y0;
   // Last step: G2 on rows k+1, k+2 zeroing s_{k+2,k}; from column k+1 on, T's row k+2 being
   // (0, β) there.
   const rl = givensRadius(s10, s20);
@@ -118,17 +118,17 @@ export function sweepTail(w: PencilWork, k: number, rowStart: number, colEnd: nu
   }
   // Rows rowStart..k−1, columns k..k+2: W then R, in one pass.
   for (let o = rowStart * n + k; o < r0; o += n) {
-    rightTailOnRow(S, o, tu, u0, u1, c1, sn1, c3, sn3);
-    rightTailOnRow(T, o, tu, u0, u1, c1, sn1, c3, sn3);
+    rightTailOnRow(S, o, h00, h11, h22, h01, h02, h12, c1, sn1, c3, sn3);
+    rightTailOnRow(T, o, h00, h11, h22, h01, h02, h12, c1, sn1, c3, sn3);
   }
   // Qᵀ rows k..k+2 ← G2·P·Qᵀ; Zᵀ rows k..k+2 ← Rᵀ·Wᵀ·Zᵀ (one loop when both are wanted).
   if (QT && ZT) {
     for (let j = 0; j < n; j++) {
       tailQtColumn(QT, j, r0, r1, r2, ta, a1, a2, ta1, ta2, c2, sn2);
-      tailZtColumn(ZT, j, r0, r1, r2, tu, u0, u1, c1, sn1, c3, sn3);
+      tailZtColumn(ZT, j, r0, r1, r2, h00, h11, h22, h01, h02, h12, c1, sn1, c3, sn3);
     }
   } else if (ZT) {
-    for (let j = 0; j < n; j++) tailZtColumn(ZT, j, r0, r1, r2, tu, u0, u1, c1, sn1, c3, sn3);
+    for (let j = 0; j < n; j++) tailZtColumn(ZT, j, r0, r1, r2, h00, h11, h22, h01, h02, h12, c1, sn1, c3, sn3);
   }
 }
 
@@ -142,26 +142,30 @@ function tailQtColumn(QT: Float64Array, j: number, r0: number, r1: number, r2: n
   QT[r2 + j] = c * x2 - s * x1;
 }
 
-/** Column j of Zᵀ's rows r0..r2 (offsets): W = H·G (as rows of Z), then R on rows (r2, r1). */
-function tailZtColumn(ZT: Float64Array, j: number, r0: number, r1: number, r2: number, tu: number, u0: number, u1: number, c1: number, s1: number, c3: number, s3: number): void {
+/** Column j of Zᵀ's rows r0..r2 (offsets): W = H·G (as rows of Z, H by its entries), then R on rows (r2, r1). */
+function tailZtColumn(
+  ZT: Float64Array, j: number, r0: number, r1: number, r2: number,
+  h00: number, h11: number, h22: number, h01: number, h02: number, h12: number, c1: number, s1: number, c3: number, s3: number,
+): void {
   const x0 = ZT[r0 + j], x1 = ZT[r1 + j], x2 = ZT[r2 + j];
-  const e = tu * (u0 * x0 + u1 * x1 + x2);
-  const p0 = x0 - e * u0, p1 = x1 - e * u1;
-  const z1 = c1 * p1 + s1 * p0, z2 = x2 - e;
+  const p0 = h00 * x0 + h01 * x1 + h02 * x2, p1 = h01 * x0 + h11 * x1 + h12 * x2;
+  const z1 = c1 * p1 + s1 * p0, z2 = h02 * x0 + h12 * x1 + h22 * x2;
   ZT[r0 + j] = c1 * p0 - s1 * p1;
   ZT[r2 + j] = c3 * z2 + s3 * z1;
   ZT[r1 + j] = c3 * z1 - s3 * z2;
 }
 
 /**
- * Entries o..o+2 of row-major M (a row above the bulge, columns l−2..l): W = H·G, then the
- * rotation (c3, s3) on the last two (columns (l, l−1)).
+ * Entries o..o+2 of row-major M (a row above the bulge, columns l−2..l): W = H·G (H by its
+ * entries), then the rotation (c3, s3) on the last two (columns (l, l−1)).
  */
-function rightTailOnRow(M: Float64Array, o: number, tu: number, u0: number, u1: number, c1: number, s1: number, c3: number, s3: number): void {
+function rightTailOnRow(
+  M: Float64Array, o: number, h00: number, h11: number, h22: number, h01: number, h02: number, h12: number,
+  c1: number, s1: number, c3: number, s3: number,
+): void {
   const x0 = M[o], x1 = M[o + 1], x2 = M[o + 2];
-  const wv = tu * (u0 * x0 + u1 * x1 + x2);
-  const y0 = x0 - wv * u0, y1 = x1 - wv * u1;
-  const z1 = c1 * y1 + s1 * y0, z2 = x2 - wv;
+  const y0 = h00 * x0 + h01 * x1 + h02 * x2, y1 = h01 * x0 + h11 * x1 + h12 * x2;
+  const z1 = c1 * y1 + s1 * y0, z2 = h02 * x0 + h12 * x1 + h22 * x2;
   M[o] = c1 * y0 - s1 * y1;
   M[o + 2] = c3 * z2 + s3 * z1;
   M[o + 1] = c3 * z1 - s3 * z2;

@@ -3,7 +3,12 @@
  * number of 3-row steps: the last two fused with the final 2-row step (qzSweepTail.ts has the
  * odd case). Internal to linalg/.
  */
-import type { PencilWork } from "./qzKernels";
+import { type PencilWork, reflectorEntries as reflectorEntriesShared, reflectorH as reflectorHShared } from "./qzKernels";
+
+// Module-level aliases: read through an import binding, every access in the inner loops cost a
+// getter call under per-file CommonJS transpilation (tsx, vitest).
+const reflectorEntries = reflectorEntriesShared;
+const hq = reflectorHShared;
 
 /**
  * The last three steps, k = l−3 and k+1 = l−2 (3-row: P1 from `pending`, W1 = H1·G1, P2 from
@@ -45,44 +50,38 @@ export function sweepTailPair(w: PencilWork, k: number, rowStart: number, colEnd
   t02 -= ta * d; t12 -= ta1 * d; t22 -= ta2 * d;
   d = t03 + a1 * t13 + a2 * t23;
   t03 -= ta * d; t13 -= ta1 * d; t23 -= ta2 * d;
-  // W1 = H1·G1 on columns k..k+2: rows k..k+3 of S, rows k, k+1 of T.
-  let tu = 0, u0 = 0, u1 = 0;
-  {
-    let beta = Math.sqrt(t22 * t22 + t20 * t20 + t21 * t21);
-    if (!(beta > 1e-150 && beta < 1e150)) beta = Math.hypot(t22, t20, t21);
-    beta = t20 === 0 && t21 === 0 ? t22 : t22 >= 0 ? -beta : beta;
-    if (beta !== t22) {
-      const sc = 1 / (t22 - beta);
-      tu = (beta - t22) / beta; u0 = t20 * sc; u1 = t21 * sc;
-    }
-    t22 = beta;
-  }
-  let wv = tu * (u0 * t10 + u1 * t11 + t12);
-  let gf = t11 - wv * u1, gg = t10 - wv * u0;
+  // W1 = H1·G1 on columns k..k+2: rows k..k+3 of S, rows k, k+1 of T. H1 by its explicit
+  // entries (`reflectorEntries`: no cancellation when it is close to a permutation, see qzSweep.ts).
+  let beta = Math.sqrt(t22 * t22 + t20 * t20 + t21 * t21);
+  if (!(beta > 1e-150 && beta < 1e150)) beta = Math.hypot(t22, t20, t21);
+  beta = t20 === 0 && t21 === 0 ? t22 : t22 >= 0 ? -beta : beta;
+  reflectorEntries(t22, t20, t21, beta);
+  const h00 = hq[0], h11 = hq[1], h22 = hq[2], h01 = hq[3], h02 = hq[4], h12 = hq[5];
+  t22 = beta;
+  let gf = h01 * t10 + h11 * t11 + h12 * t12, gg = h00 * t10 + h01 * t11 + h02 * t12;
   let rg = gg === 0 ? gf : gf === 0 ? gg : Math.sqrt(gf * gf + gg * gg);
   if (rg === 0 || rg === Infinity) rg = Math.hypot(gf, gg);
   const c1 = gg === 0 ? 1 : gf === 0 ? 0 : rg > 1e-290 ? gf * (1 / rg) : gf / rg;
   const sn1 = gg === 0 ? 0 : gf === 0 ? 1 : rg > 1e-290 ? gg * (1 / rg) : gg / rg;
-  wv = tu * (u0 * s00 + u1 * s01 + s02);
-  let y0 = s00 - wv * u0, y1 = s01 - wv * u1;
-  s00 = c1 * y0 - sn1 * y1; s01 = c1 * y1 + sn1 * y0; s02 -= wv;
-  wv = tu * (u0 * t00 + u1 * t01 + t02);
-  y0 = t00 - wv * u0; y1 = t01 - wv * u1;
-  t00 = c1 * y0 - sn1 * y1; t01 = c1 * y1 + sn1 * y0; t02 -= wv;
-  wv = tu * (u0 * s10 + u1 * s11 + s12);
-  y0 = s10 - wv * u0; y1 = s11 - wv * u1;
-  s10 = c1 * y0 - sn1 * y1; s11 = c1 * y1 + sn1 * y0; s12 -= wv;
-  wv = tu * (u0 * t10 + u1 * t11 + t12); // t10 becomes 0
-  y1 = t11 - wv * u1;
-  t11 = c1 * y1 + sn1 * (t10 - wv * u0); t12 -= wv;
-  wv = tu * (u0 * s20 + u1 * s21 + s22);
-  y0 = s20 - wv * u0; y1 = s21 - wv * u1;
-  s20 = c1 * y0 - sn1 * y1; s21 = c1 * y1 + sn1 * y0; s22 -= wv;
-  wv = tu * s32; // row k+3 of S is (0, 0, s32) on these columns
-  y0 = -(wv * u0); y1 = -(wv * u1);
+  let y0 = h00 * s00 + h01 * s01 + h02 * s02, y1 = h01 * s00 + h11 * s01 + h12 * s02;
+  s02 = h02 * s00 + h12 * s01 + h22 * s02;
+  s00 = c1 * y0 - sn1 * y1; s01 = c1 * y1 + sn1 * y0;
+  y0 = h00 * t00 + h01 * t01 + h02 * t02; y1 = h01 * t00 + h11 * t01 + h12 * t02;
+  t02 = h02 * t00 + h12 * t01 + h22 * t02;
+  t00 = c1 * y0 - sn1 * y1; t01 = c1 * y1 + sn1 * y0;
+  y0 = h00 * s10 + h01 * s11 + h02 * s12; y1 = h01 * s10 + h11 * s11 + h12 * s12;
+  s12 = h02 * s10 + h12 * s11 + h22 * s12;
+  s10 = c1 * y0 - sn1 * y1; s11 = c1 * y1 + sn1 * y0;
+  t12 = h02 * t10 + h12 * t11 + h22 * t12; // t10 becomes 0; (gf, gg) is row k+1 after H1
+  t11 = c1 * gf + sn1 * gg;
+  y0 = h00 * s20 + h01 * s21 + h02 * s22; y1 = h01 * s20 + h11 * s21 + h12 * s22;
+  s22 = h02 * s20 + h12 * s21 + h22 * s22;
+  s20 = c1 * y0 - sn1 * y1; s21 = c1 * y1 + sn1 * y0;
+  // Row k+3 of S is (0, 0, s32) on these columns.
+  y0 = h02 * s32; y1 = h12 * s32;
   const s30 = c1 * y0 - sn1 * y1;
   let s31 = c1 * y1 + sn1 * y0;
-  s32 -= wv;
+  s32 = h22 * s32;
   // P2 from column k, rows k+1..k+3; on columns k+1..k+3.
   let tb = 0, b1 = 0, b2 = 0;
   {
@@ -112,44 +111,37 @@ export function sweepTailPair(w: PencilWork, k: number, rowStart: number, colEnd
   d = t13 + b1 * t23 + b2 * t33;
   t13 -= tb * d; t23 -= tb1 * d; t33 -= tb2 * d;
   // W2 = H2·G2 on columns k+1..k+3: rows k..k+3 of S (the last row), rows k..k+2 of T.
-  let tv = 0, v0 = 0, v1 = 0;
-  {
-    let beta = Math.sqrt(t33 * t33 + t31 * t31 + t32 * t32);
-    if (!(beta > 1e-150 && beta < 1e150)) beta = Math.hypot(t33, t31, t32);
-    beta = t31 === 0 && t32 === 0 ? t33 : t33 >= 0 ? -beta : beta;
-    if (beta !== t33) {
-      const sc = 1 / (t33 - beta);
-      tv = (beta - t33) / beta; v0 = t31 * sc; v1 = t32 * sc;
-    }
-    t33 = beta;
-  }
-  wv = tv * (v0 * t21 + v1 * t22 + t23);
-  gf = t22 - wv * v1; gg = t21 - wv * v0;
+  beta = Math.sqrt(t33 * t33 + t31 * t31 + t32 * t32);
+  if (!(beta > 1e-150 && beta < 1e150)) beta = Math.hypot(t33, t31, t32);
+  beta = t31 === 0 && t32 === 0 ? t33 : t33 >= 0 ? -beta : beta;
+  reflectorEntries(t33, t31, t32, beta);
+  const e11 = hq[0], e22 = hq[1], e33 = hq[2], e12 = hq[3], e13 = hq[4], e23 = hq[5];
+  t33 = beta;
+  gf = e12 * t21 + e22 * t22 + e23 * t23; gg = e11 * t21 + e12 * t22 + e13 * t23;
   rg = gg === 0 ? gf : gf === 0 ? gg : Math.sqrt(gf * gf + gg * gg);
   if (rg === 0 || rg === Infinity) rg = Math.hypot(gf, gg);
   const c2 = gg === 0 ? 1 : gf === 0 ? 0 : rg > 1e-290 ? gf * (1 / rg) : gf / rg;
   const sn2 = gg === 0 ? 0 : gf === 0 ? 1 : rg > 1e-290 ? gg * (1 / rg) : gg / rg;
-  wv = tv * (v0 * s01 + v1 * s02 + s03);
-  y0 = s01 - wv * v0; y1 = s02 - wv * v1;
-  s01 = c2 * y0 - sn2 * y1; s02 = c2 * y1 + sn2 * y0; s03 -= wv;
-  wv = tv * (v0 * t01 + v1 * t02 + t03);
-  y0 = t01 - wv * v0; y1 = t02 - wv * v1;
-  t01 = c2 * y0 - sn2 * y1; t02 = c2 * y1 + sn2 * y0; t03 -= wv;
-  wv = tv * (v0 * s11 + v1 * s12 + s13);
-  y0 = s11 - wv * v0; y1 = s12 - wv * v1;
-  s11 = c2 * y0 - sn2 * y1; s12 = c2 * y1 + sn2 * y0; s13 -= wv;
-  wv = tv * (v0 * t11 + v1 * t12 + t13);
-  y0 = t11 - wv * v0; y1 = t12 - wv * v1;
-  t11 = c2 * y0 - sn2 * y1; t12 = c2 * y1 + sn2 * y0; t13 -= wv;
-  wv = tv * (v0 * s21 + v1 * s22 + s23);
-  y0 = s21 - wv * v0; y1 = s22 - wv * v1;
-  s21 = c2 * y0 - sn2 * y1; s22 = c2 * y1 + sn2 * y0; s23 -= wv;
-  wv = tv * (v0 * t21 + v1 * t22 + t23); // t21 becomes 0
-  y1 = t22 - wv * v1;
-  t22 = c2 * y1 + sn2 * (t21 - wv * v0); t23 -= wv;
-  wv = tv * (v0 * s31 + v1 * s32 + s33);
-  y0 = s31 - wv * v0; y1 = s32 - wv * v1;
-  s31 = c2 * y0 - sn2 * y1; s32 = c2 * y1 + sn2 * y0; s33 -= wv;
+  y0 = e11 * s01 + e12 * s02 + e13 * s03; y1 = e12 * s01 + e22 * s02 + e23 * s03;
+  s03 = e13 * s01 + e23 * s02 + e33 * s03;
+  s01 = c2 * y0 - sn2 * y1; s02 = c2 * y1 + sn2 * y0;
+  y0 = e11 * t01 + e12 * t02 + e13 * t03; y1 = e12 * t01 + e22 * t02 + e23 * t03;
+  t03 = e13 * t01 + e23 * t02 + e33 * t03;
+  t01 = c2 * y0 - sn2 * y1; t02 = c2 * y1 + sn2 * y0;
+  y0 = e11 * s11 + e12 * s12 + e13 * s13; y1 = e12 * s11 + e22 * s12 + e23 * s13;
+  s13 = e13 * s11 + e23 * s12 + e33 * s13;
+  s11 = c2 * y0 - sn2 * y1; s12 = c2 * y1 + sn2 * y0;
+  y0 = e11 * t11 + e12 * t12 + e13 * t13; y1 = e12 * t11 + e22 * t12 + e23 * t13;
+  t13 = e13 * t11 + e23 * t12 + e33 * t13;
+  t11 = c2 * y0 - sn2 * y1; t12 = c2 * y1 + sn2 * y0;
+  y0 = e11 * s21 + e12 * s22 + e13 * s23; y1 = e12 * s21 + e22 * s22 + e23 * s23;
+  s23 = e13 * s21 + e23 * s22 + e33 * s23;
+  s21 = c2 * y0 - sn2 * y1; s22 = c2 * y1 + sn2 * y0;
+  t23 = e13 * t21 + e23 * t22 + e33 * t23; // t21 becomes 0; (gf, gg) is row k+2 after H2
+  t22 = c2 * gf + sn2 * gg;
+  y0 = e11 * s31 + e12 * s32 + e13 * s33; y1 = e12 * s31 + e22 * s32 + e23 * s33;
+  s33 = e13 * s31 + e23 * s32 + e33 * s33;
+  s31 = c2 * y0 - sn2 * y1; s32 = c2 * y1 + sn2 * y0;
   // Last step: G3 on rows k+2, k+3 zeroing s_{k+3,k+1}; T's row k+3 is (0, 0, β) on columns
   // k+1..k+3 here.
   rg = s31 === 0 ? s21 : s21 === 0 ? s31 : Math.sqrt(s21 * s21 + s31 * s31);
@@ -200,12 +192,8 @@ export function sweepTailPair(w: PencilWork, k: number, rowStart: number, colEnd
   }
   // M = W1·W2·R as a 4×4 matrix on row vectors (rows: input entry, columns: output entry;
   // M[3][0] = 0), for the rows above the bulge and the rows of Zᵀ.
-  const g0 = tu * u0, g1 = tu * u1;
-  const h00 = 1 - g0 * u0, h01 = -(g0 * u1), h02 = -g0, h11 = 1 - g1 * u1, h12 = -g1, h22 = 1 - tu;
   const w01 = c1 * h01 + sn1 * h00, w11 = c1 * h11 + sn1 * h01, w21 = c1 * h12 + sn1 * h02;
   const m00 = c1 * h00 - sn1 * h01, m10 = c1 * h01 - sn1 * h11, m20 = c1 * h02 - sn1 * h12;
-  const e0 = tv * v0, e1 = tv * v1;
-  const e11 = 1 - e0 * v0, e12 = -(e0 * v1), e13 = -e0, e22 = 1 - e1 * v1, e23 = -e1, e33 = 1 - tv;
   const x11 = c2 * e11 - sn2 * e12, x12 = c2 * e12 + sn2 * e11;
   const x21 = c2 * e12 - sn2 * e22, x22 = c2 * e22 + sn2 * e12;
   const x31 = c2 * e13 - sn2 * e23, x32 = c2 * e23 + sn2 * e13;
