@@ -44,7 +44,7 @@ export const SHEET_FAILED_TITLE_PREFIX = "loopwright-sheet-failed:";
 /** How long the hidden window may take to render the sheet (it designs the variant first). */
 export const DEFAULT_SHEET_READY_TIMEOUT_MS = 30_000;
 
-/** Ids as the project format allows them (shared-engine/project/validateProject.ts ID_PATTERN). */
+/** Ids as the project format allows them (shared-engine/project/validationParts.ts ID_PATTERN). */
 const ROUTE_PATTERN = /^#\/sheet\/([A-Za-z0-9][A-Za-z0-9_.-]{0,63})\/([A-Za-z0-9][A-Za-z0-9_.-]{0,63})$/;
 
 export interface PrintSheetRequest {
