@@ -1,6 +1,7 @@
 /**
  * Bode plot: magnitude (dB) over phase (deg) on one logarithmic frequency axis (rad/s), gaps where
- * the response is unbounded, gain and phase margins marked at their crossovers, a hover read-out
+ * the response is unbounded, gain and phase margins marked at their crossovers (labels laid out
+ * by bodeModel's layoutMarginLabels, clear of each other inside their panel), a hover read-out
  * with every digit. Zoom and pan act on frequency; both panels follow.
  */
 import { useId, useRef, useState } from "react";
@@ -113,8 +114,11 @@ export function BodePlot({ series, title = "Bode plot", width = 640, height = 52
               <g key={i} className={`lw-margin lw-margin-${m.kind}`}>
                 <line className="lw-crossover-line" x1={m.x} x2={m.x} y1={panel.top} y2={panel.top + panel.height} stroke={model.series[m.seriesIndex]!.style.color} />
                 <line className="lw-margin-bar" x1={m.x} x2={m.x} y1={m.y1} y2={m.y2} stroke={model.series[m.seriesIndex]!.style.color} />
-                <text className="lw-margin-label" x={m.x + 4} y={Math.max(panel.top + 12, Math.min(m.y1, m.y2) - 4) + 12 * (m.seriesIndex % 3)}>{m.label}</text>
               </g>
+            ))}
+            {/* Labels after every mark, so no later crossover line is drawn over a label; placed clear of each other by bodeModel. */}
+            {model.labels.filter((l) => l.panel === key).map((l) => (
+              <text key={`l${l.markIndex}`} className={`lw-margin-label lw-margin-label-${model.marks[l.markIndex]!.kind}`} x={l.x} y={l.y} data-series={l.seriesIndex}>{l.text}</text>
             ))}
             {screen && hover !== null && (
               <line className="lw-hover-line" data-export="omit" x1={model.x(hover)} x2={model.x(hover)} y1={panel.top} y2={panel.top + panel.height} />

@@ -1,10 +1,11 @@
 /**
  * Bode plot model: a shared logarithmic frequency axis, a magnitude panel (dB) and a phase panel
- * (degrees), paths with gaps where the response is unbounded (null), margin marks, and the
- * hover read-out. Pure; BodePlot.tsx draws it.
+ * (degrees), paths with gaps where the response is unbounded (null), margin marks with their
+ * labels laid out clear of each other, and the hover read-out. Pure; BodePlot.tsx draws it.
  */
 import { scaleLinear, scaleLog, type ScaleLinear, type ScaleLogarithmic } from "d3";
 import { decadeDomain, linearTicks, logTicks, niceDomain, phaseTicks, type AxisModel } from "./axisModel";
+import { placeLabels, textSize, type Box, type LabelRequest } from "./labelPlacement";
 import { seriesStyle, type SeriesStyle } from "./palette";
 import { polylinePath, toHundredths } from "./polylinePath";
 import { fullPrecision, isDrawable, type Domain } from "./plotTypes";
@@ -39,6 +40,21 @@ export interface MarginMark {
   label: string;
 }
 
+/** Font size (px) of the margin annotations (plots.css .lw-margin-label). */
+export const MARGIN_FONT = 10.5;
+
+/** A margin annotation placed by `layoutMarginLabels`: its text box and the text's start and baseline. */
+export interface MarginLabel {
+  /** Index of its mark in `BodeModel.marks`. */
+  markIndex: number;
+  seriesIndex: number;
+  panel: "magnitude" | "phase";
+  text: string;
+  box: Box;
+  x: number;
+  y: number;
+}
+
 export interface BodePanel {
   y: ScaleLinear<number, number>;
   axis: AxisModel;
@@ -55,6 +71,8 @@ export interface BodeModel {
   phase: BodePanel;
   series: { name: string; style: SeriesStyle; magnitudePath: string; phasePath: string }[];
   marks: MarginMark[];
+  /** Labels of the marks in view, inside their panel and clear of each other (see layoutMarginLabels). */
+  labels: MarginLabel[];
   /** y of the 0 dB line and of the −180° (+k·360°) reference nearest the data, when in view. */
   zeroDbY: number | null;
   phaseReferenceY: number | null;
@@ -160,6 +178,20 @@ export function bodeModel(input: BodeModelInput): BodeModel {
     }
   });
 
+  const visiblePoints = (s: BodeSeries, values: readonly (number | null)[], y: ScaleLinear<number, number>) => {
+    const pts: [number, number][] = [];
+    s.frequency.forEach((w, k) => {
+      const v = values[k];
+      if (w >= xDomain[0] && w <= xDomain[1] && isDrawable(v)) pts.push([x(w), y(v)]);
+    });
+    return pts;
+  };
+  const panelBox = (panelTop: number): Box => ({ x: left, y: panelTop, width: plotWidth, height: panelHeight });
+  const labels = layoutMarginLabels(marks, {
+    magnitude: { frame: panelBox(magTop), curves: series.map((s) => visiblePoints(s, s.magnitudeDb, magY)) },
+    phase: { frame: panelBox(phaseTop), curves: series.map((s) => visiblePoints(s, s.phaseDeg, phaseY)) },
+  });
+
   const firstPhase = phaseValues.find(isDrawable);
   const ref = firstPhase === undefined ? null : phaseReference(series.length && series[0]!.margins?.gainCrossover ? (interpolateAtFrequency(series[0]!.frequency, series[0]!.phaseDeg, series[0]!.margins.gainCrossover) ?? firstPhase) : firstPhase);
   const within = (v: number, d: Domain) => v >= Math.min(d[0], d[1]) && v <= Math.max(d[0], d[1]);
@@ -171,6 +203,7 @@ export function bodeModel(input: BodeModelInput): BodeModel {
     phase: { y: phaseY, axis: phaseTicks(phaseDomain, [phaseTop + panelHeight, phaseTop], 3, Math.max(3, Math.min(7, Math.floor(panelHeight / 24)))), top: phaseTop, height: panelHeight },
     series: series.map((s, si) => ({ name: s.name, style: seriesStyle(s.styleIndex ?? si), magnitudePath: path(s, s.magnitudeDb, magY), phasePath: path(s, s.phaseDeg, phaseY) })),
     marks,
+    labels,
     zeroDbY: within(0, magDomain) ? magY(0) : null,
     phaseReferenceY: ref !== null && within(ref, phaseDomain) ? phaseY(ref) : null,
   };
@@ -183,4 +216,43 @@ export function bodeReadout(series: readonly BodeSeries[], w: number): { name: s
     if (k < 0) return [];
     return [{ name: s.name, frequency: fullPrecision(s.frequency[k]), magnitudeDb: fullPrecision(s.magnitudeDb[k]), phaseDeg: fullPrecision(s.phaseDeg[k]) }];
   });
+}
+
+/**
+ * Lays out the margin labels of each panel inside that panel (`frame`), in mark order, by the
+ * greedy pass of labelPlacement.ts: a label goes right of its crossover line just above the
+ * margin bar, else just below it, else left of the line above or below, else stacked by whole
+ * rows from those spots; never over a placed label (2 px clearance) and, when any spot allows
+ * it, not across a curve of the panel (`curves`, in px) or a margin bar. So the labels of up to
+ * four series with the same crossover frequency stack instead of printing over each other (the
+ * comparison shows 2–4 variants). Marks outside the visible frequency range get no label; a
+ * label that fits nowhere in a tiny panel is left out rather than drawn off the plot.
+ */
+export function layoutMarginLabels(
+  marks: readonly MarginMark[],
+  panels: Record<"magnitude" | "phase", { frame: Box; curves: readonly (readonly (readonly [number, number])[])[] }>,
+): MarginLabel[] {
+  const out: MarginLabel[] = [];
+  for (const key of ["magnitude", "phase"] as const) {
+    const { frame, curves } = panels[key];
+    const inPanel = marks.map((m, markIndex) => ({ m, markIndex })).filter(({ m }) => m.panel === key && m.x >= frame.x && m.x <= frame.x + frame.width);
+    const bars: (readonly (readonly [number, number])[])[] = inPanel.map(({ m }) => [[m.x, m.y1], [m.x, m.y2]]);
+    const requests: LabelRequest[] = inPanel.map(({ m }) => {
+      const { width, height } = textSize(m.label, MARGIN_FONT);
+      const barTop = Math.min(m.y1, m.y2), barBottom = Math.max(m.y1, m.y2);
+      return {
+        text: m.label, width, height,
+        candidates: [
+          { x: m.x + 4, y: barTop - 4 - height }, { x: m.x + 4, y: barBottom + 4 },
+          { x: m.x - 4 - width, y: barTop - 4 - height }, { x: m.x - 4 - width, y: barBottom + 4 },
+        ],
+      };
+    });
+    const boxes = placeLabels(requests, frame, { lines: [...curves, ...bars] });
+    inPanel.forEach(({ m, markIndex }, i) => {
+      const b = boxes[i];
+      if (b) out.push({ markIndex, seriesIndex: m.seriesIndex, panel: key, text: m.label, box: b, x: b.x + 1, y: b.y + MARGIN_FONT * 0.9 });
+    });
+  }
+  return out;
 }

@@ -109,4 +109,62 @@ describe("side-by-side comparison in browser mode", () => {
     await page.locator(".compare-bode").screenshot({ path: screenshotPath("compare-demo-bode.png") });
     expect(problems).toEqual([]);
   });
+
+  it("draws the demo's poles on one map per time domain, keeps its four loops' margin labels apart, and redesigns a revision saved in another window", async () => {
+    await page.goto(server.url);
+    await page.getByTestId("project-count").filter({ hasText: /project/ }).waitFor();
+    await page.getByRole("link", { name: `Compare and history of ${DEMO_PROJECT_NAME}` }).click();
+    await expect.poll(() => page.getByTestId("evaluation-status").textContent(), { timeout: 60_000 }).toBe("Designed from revision 1");
+    await expect.poll(() => page.getByTestId("bode-caption").textContent(), { timeout: 60_000 }).toMatch(/^4 of 4 compared loops/);
+
+    // Three continuous variants on the s-plane map, the one sampled at T = 1 s on a z-plane map.
+    const sMap = page.getByTestId("pole-map-s");
+    const zMap = page.getByTestId("pole-map-z");
+    expect(await sMap.locator(".lw-plot-title").textContent()).toMatch(/s-plane \(continuous\)$/);
+    expect(await sMap.locator(".lw-legend > g").count()).toBe(3);
+    expect(await sMap.locator(".lw-guide-unit").count()).toBe(0);
+    expect(await zMap.count()).toBe(1);
+    expect(await zMap.locator(".lw-plot-title").textContent()).toMatch(/z-plane \(sampled, T = 1 s\)$/);
+    expect(await zMap.locator(".lw-legend > g").count()).toBe(1);
+    expect(await zMap.locator(".lw-guide-unit").count()).toBe(1);
+    // The sampled poles crowd near z = 1: a zoom map beside it, its window outlined on the full map.
+    expect(await zMap.getByTestId("zoom-outline").count()).toBe(1);
+    expect(await page.getByTestId("pole-zoom-z").locator(".lw-plot-title").textContent()).toMatch(/^Zoom ×\d+, z-plane \(sampled, T = 1 s\): 3 of 3 poles$/);
+    expect(await page.getByTestId("step-caption").textContent()).toMatch(/^Sampled: LQR with integral action, sampled at 1 s/);
+
+    // Margin labels as the browser laid out their text: inside their panel, no two intersecting.
+    const geometry = await page.locator(".compare-bode svg.lw-plot-svg").evaluate((svg) => {
+      const box = (e: Element) => { const b = (e as SVGGraphicsElement).getBBox(); return { x: b.x, y: b.y, width: b.width, height: b.height }; };
+      return ["magnitude", "phase"].map((key) => ({
+        panel: box(svg.querySelector(`.lw-panel-${key} clipPath rect`)!),
+        labels: [...svg.querySelectorAll(`.lw-panel-${key} .lw-margin-label`)].map(box),
+        marks: svg.querySelectorAll(`.lw-panel-${key} .lw-margin`).length,
+      }));
+    });
+    expect(geometry.reduce((n, g) => n + g.labels.length, 0)).toBeGreaterThanOrEqual(4);
+    for (const { panel, labels, marks } of geometry) {
+      expect(labels.length, "every margin mark keeps its label").toBe(marks);
+      for (const [i, a] of labels.entries()) {
+        expect(a.x >= panel.x - 0.5 && a.x + a.width <= panel.x + panel.width + 0.5 && a.y >= panel.y - 0.5 && a.y + a.height <= panel.y + panel.height + 0.5, `label ${i} inside its panel`).toBe(true);
+        for (const b of labels.slice(i + 1)) {
+          expect(a.x < b.x + b.width && b.x < a.x + a.width && a.y < b.y + b.height && b.y < a.y + a.height, "two margin labels intersect").toBe(false);
+        }
+      }
+    }
+    await page.locator(".compare-plots").screenshot({ path: screenshotPath("compare-demo-domains.png") });
+
+    // Another window saves revision 2: this one shows it and redesigns it without being asked.
+    const other = await context.newPage();
+    await other.goto(page.url().replace(/\/compare$/, "/variants"));
+    await other.locator('[data-variant-id="poles-continuous"]').getByRole("button", { name: "Make baseline" }).click();
+    await expect.poll(() => other.getByTestId("revision-label").textContent()).toBe("revision 2");
+    await other.close();
+    await expect.poll(() => page.getByTestId("revision-label").textContent()).toBe("revision 2");
+    expect(await page.getByTestId("tools-notice").textContent()).toMatch(/Revision 2 was saved in another window/);
+    await expect.poll(() => page.getByTestId("evaluation-status").textContent(), { timeout: 60_000 }).toBe("Designed from revision 2");
+    await expect.poll(() => page.getByTestId("bode-caption").textContent(), { timeout: 60_000 }).toMatch(/^4 of 4 compared loops/);
+    expect(await page.getByTestId("redesign").count()).toBe(0);
+    await page.screenshot({ path: screenshotPath("compare-demo-refreshed.png"), fullPage: true });
+    expect(problems).toEqual([]);
+  });
 });

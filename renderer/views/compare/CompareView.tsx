@@ -3,17 +3,20 @@ import { BodePlot } from "../../plots/BodePlot";
 import { PoleZeroMap } from "../../plots/PoleZeroMap";
 import { ResponsePlot } from "../../plots/ResponsePlot";
 import type { BodeSeries } from "../../plots/bodeModel";
-import type { PoleZeroSeries } from "../../plots/poleZeroModel";
-import type { ResponseSeries } from "../../plots/responseModel";
 import { buildComparisonTable, formatNumber, type ComparedVariant } from "../../state/compare/compareTable";
 import { MAX_COMPARED, type ProjectToolsState, type ProjectToolsStore } from "../../state/compare/projectToolsStore";
 import { diffSpecs } from "../../state/compare/specDiff";
 import { variantLabel } from "../../state/compare/variantCommands";
 import { CompareTableView } from "./CompareTable";
+import { comparisonSteps, poleMapsByDomain, poleZoomFor, type PoleMapGroup } from "./comparisonPlots";
 import { SpecDiffList } from "./SpecDiffList";
 import { VariantSwatch } from "./VariantSwatch";
 
-/** Side-by-side comparison of 2–4 variants: metrics table, overlaid plots and the parameter diff. */
+/**
+ * Side-by-side comparison of 2–4 variants: metrics table, overlaid plots (one pole-zero map per
+ * time domain, see comparisonPlots.ts) and the parameter diff. The status line says which
+ * revision the results are from, and when they are older than the revision shown.
+ */
 export function CompareView({ state, store }: { state: ProjectToolsState; store: ProjectToolsStore }) {
   const document = state.stored?.document;
   const compared: ComparedVariant[] = useMemo(() => {
@@ -24,23 +27,20 @@ export function CompareView({ state, store }: { state: ProjectToolsState; store:
       .map(({ v, index }) => ({ variantId: v.id, name: variantLabel(v), styleIndex: index, result: state.evaluation.results[v.id] ?? null }));
   }, [document, state.selected, state.evaluation.results]);
   const table = useMemo(() => buildComparisonTable(compared, document?.requirements ?? []), [compared, document]);
+  // One pole map per time domain present (why not one s-plane map: see comparisonPlots.ts).
+  const poleMaps = useMemo(() => poleMapsByDomain(compared), [compared]);
+  const steps = useMemo(() => comparisonSteps(compared), [compared]);
   const differences = useMemo(() => diffSpecs(compared.map((c) => document!.variants.find((v) => v.id === c.variantId))), [compared, document]);
 
   if (!document) return null;
   if (document.variants.length < 2) {
     return <p className="empty-state muted">This project has {document.variants.length === 0 ? "no design variants" : "one design variant"}; duplicate a variant in the Variants tab to compare two.</p>;
   }
-  const poleSeries: PoleZeroSeries[] = compared.flatMap((c) =>
-    c.result?.closedLoopPoles ? [{ name: c.name, poles: c.result.closedLoopPoles, zeros: c.result.plant?.zeros ?? [], styleIndex: c.styleIndex }] : [],
-  );
   const loops = comparisonBode(compared, state);
-  const stepSeries: ResponseSeries[] = compared.flatMap((c) =>
-    c.result?.step
-      ? [{ name: c.name, time: c.result.step.time, output: c.result.step.output, outputNames: c.result.step.outputNames, ...(c.result.step.control ? { control: c.result.step.control } : {}), metrics: c.result.step, styleIndex: c.styleIndex }]
-      : [],
-  );
-  const sampleTime = compared.map((c) => c.result?.discrete?.sampleTime ?? c.result?.plant?.sampleTime ?? null).find((t) => t !== null) ?? null;
   const evaluating = state.evaluation.status === "running";
+  // Results of an older revision than the one shown (another window saved meanwhile): the store
+  // redesigns on its own shortly; until then the status says so and offers to do it at once.
+  const stale = !evaluating && state.evaluation.status !== "idle" && state.evaluation.revision !== state.stored!.revision;
 
   return (
     <div className="compare-view">
@@ -54,9 +54,14 @@ export function CompareView({ state, store }: { state: ProjectToolsState; store:
             {v.baseline && <span className="tag">baseline</span>}
           </label>
         ))}
-        <span className="muted" role="status" data-testid="evaluation-status">
-          {evaluating ? "Designing…" : state.evaluation.status === "failed" ? `Design failed: ${state.evaluation.error}` : state.evaluation.status === "done" ? `Designed from revision ${state.evaluation.revision}` : ""}
+        <span className="muted" role="status" data-testid="evaluation-status" data-stale={stale || undefined}>
+          {evaluationStatus(state, stale)}
         </span>
+        {stale && (
+          <button type="button" className="button-quiet" data-testid="redesign" onClick={() => void store.evaluate()}>
+            Redesign now
+          </button>
+        )}
       </fieldset>
 
       <h2 className="section-title">Metrics</h2>
@@ -64,8 +69,23 @@ export function CompareView({ state, store }: { state: ProjectToolsState; store:
 
       <h2 className="section-title">Plots</h2>
       <div className="compare-plots">
-        {poleSeries.length > 0 ? <PoleZeroMap series={poleSeries} sampleTime={sampleTime} title="Closed-loop poles × and zeros ○" width={500} height={400} fileName="compare-poles" /> : <PlotPlaceholder what="pole-zero map" />}
-        {stepSeries.length > 0 ? <ResponsePlot series={stepSeries} title="Closed-loop step response" width={500} height={400} fileName="compare-step" /> : <PlotPlaceholder what="step responses" />}
+        {poleMaps.length > 0 ? (
+          poleMaps.map((g) => <DomainPoleMaps key={g.key} group={g} />)
+        ) : (
+          <PlotPlaceholder what="pole-zero map" />
+        )}
+        {steps.series.length > 0 ? (
+          <div className="compare-step">
+            <ResponsePlot series={steps.series} title="Closed-loop step response" width={500} height={400} fileName="compare-step" />
+            {steps.note && (
+              <p className="muted" role="note" data-testid="step-caption">
+                {steps.note}
+              </p>
+            )}
+          </div>
+        ) : (
+          <PlotPlaceholder what="step responses" />
+        )}
         <div className="compare-bode">
           {loops.series.length > 0 ? <BodePlot series={loops.series} title="Loop at the plant input" width={500} height={440} fileName="compare-bode" /> : <PlotPlaceholder what="loop at the plant input" />}
           <p className="muted" role="note" data-testid="bode-caption">
@@ -87,6 +107,24 @@ export function CompareView({ state, store }: { state: ProjectToolsState; store:
       <SpecDiffList differences={differences} columns={table.columns} />
     </div>
   );
+}
+
+/** The status line: designing, failed, designed from revision N, or out of date (stale). */
+function evaluationStatus(state: ProjectToolsState, stale: boolean): string {
+  const { evaluation } = state;
+  if (evaluation.status === "running") {
+    // While a newer revision is designed, the table and plots still show the previous results.
+    const shown = state.stored!.revision;
+    const previous = evaluation.revision >= 0 && evaluation.revision !== shown && Object.keys(evaluation.results).length > 0;
+    return `Designing revision ${shown}…${previous ? ` (the results below are from revision ${evaluation.revision} until then)` : ""}`;
+  }
+  if (stale) {
+    const what = evaluation.status === "failed" ? `The design of revision ${evaluation.revision} failed` : `Designed from revision ${evaluation.revision}`;
+    return `${what}; revision ${state.stored!.revision} was saved in another window since, so these results are out of date until it is redesigned (shortly, on its own).`;
+  }
+  if (evaluation.status === "failed") return `Design failed: ${evaluation.error}`;
+  if (evaluation.status === "done") return `Designed from revision ${evaluation.revision}`;
+  return "";
 }
 
 function sameIds(a: readonly string[], b: readonly string[]): boolean {
@@ -141,6 +179,36 @@ function comparisonBode(compared: readonly ComparedVariant[], state: ProjectTool
         ? "Computing the loop at the plant input of every compared variant…"
         : "";
   return { series, caption, missing };
+}
+
+const MAP_WIDTH = 500;
+const MAP_HEIGHT = 400;
+
+/** One domain's pole map, and a zoom map beside it when its poles crowd into a speck. */
+function DomainPoleMaps({ group }: { group: PoleMapGroup }) {
+  const zoom = useMemo(() => poleZoomFor(group, MAP_WIDTH, MAP_HEIGHT), [group]);
+  const kind = group.sampleTime === null ? "s" : "z";
+  const fileName = group.sampleTime === null ? "compare-poles-s-plane" : `compare-poles-z-plane-T${group.sampleTime}`;
+  return (
+    <>
+      <div className="compare-poles" data-testid={`pole-map-${kind}`} data-sample-time={group.sampleTime ?? undefined}>
+        <PoleZeroMap
+          series={group.series}
+          sampleTime={group.sampleTime}
+          title={group.title}
+          width={MAP_WIDTH}
+          height={MAP_HEIGHT}
+          fileName={fileName}
+          outline={zoom ? { x: zoom.window.x, y: zoom.window.y, label: "zoomed in the next map" } : null}
+        />
+      </div>
+      {zoom && (
+        <div className="compare-poles compare-poles-zoom" data-testid={`pole-zoom-${kind}`}>
+          <PoleZeroMap series={group.series} sampleTime={group.sampleTime} title={zoom.title} width={MAP_WIDTH} height={MAP_HEIGHT} fileName={`${fileName}-zoom`} view={{ x: zoom.window.x, y: zoom.window.y }} caption={zoom.caption} />
+        </div>
+      )}
+    </>
+  );
 }
 
 function PlotPlaceholder({ what }: { what: string }) {
