@@ -43,6 +43,10 @@ describe("layout at 1366×768", () => {
   it("the demo project's workspace fits the window on every tab", async () => {
     await page.getByRole("button", { name: `Open ${DEMO_PROJECT_NAME}` }).click();
     await page.getByTestId("workspace").waitFor();
+    // The seven section tabs sit on one row.
+    const tabTops = await page.getByRole("tab").evaluateAll((tabs) => tabs.map((t) => Math.round(t.getBoundingClientRect().top)));
+    expect(tabTops.length).toBe(7);
+    expect(new Set(tabTops).size, `tab rows at ${tabTops.join(", ")}`).toBe(1);
     for (const tab of await page.getByRole("tab").allTextContents()) {
       await page.getByRole("tab", { name: tab, exact: true }).click();
       expect(await sidewaysOverflow(), `tab ${tab}`).toBeLessThanOrEqual(0);
