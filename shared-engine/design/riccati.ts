@@ -3,7 +3,7 @@
  * N), the weight checks, the symplectic scaling and the final solve X = U21·U11⁻¹ from a basis
  * of the stable subspace. Kernels: riccatiKernels.ts; continuous solver: riccatiContinuous.ts;
  * discrete: riccatiDiscrete.ts; extended pencil: riccatiPencil.ts; Newton refinement and the
- * final verification: riccatiRefine.ts.
+ * final verification: riccatiRefine.ts; the Hamiltonian's imaginary-axis test: riccatiAxis.ts.
  */
 import { Matrix } from "ml-matrix";
 import { EngineError } from "../errors";

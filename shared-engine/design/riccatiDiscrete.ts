@@ -26,7 +26,11 @@ import { finishRiccati } from "./riccatiRefine";
  * Comput. 2(2), 1981). The symplectic matrix is never formed, so A⁻¹ is never needed.
  * Optional Newton refinement: G. A. Hewer, "An iterative technique for the computation of the
  * steady state gains for the discrete optimal regulator", IEEE Trans. Automatic Control
- * AC-16(4), 1971, in defect-correction form (Aclᵀ E Acl − E = −Res(X), X ← X + E).
+ * AC-16(4), 1971, in defect-correction form (Aclᵀ E Acl − E = −Res(X), X ← X + E), solved in the
+ * balanced coordinates of Acl (power-of-two diagonal), which keeps it working when the states'
+ * units differ by orders of magnitude. For such plants the QZ route is accurate normwise but
+ * not entry by entry (measured: worst entry 4.5e-10 relative on a sampled hydraulic positioner,
+ * 7e-16 with `refine: true`); refinement is automatic only above the normwise threshold below.
  *
  * Cost: about 46·(2n)³ flops for QZ accumulating only Z (Q is never formed), O((2n+m)·n·m) for the
  * compression, 4n³ for X and 10n³ for the closed-loop poles; each Newton step is one discrete

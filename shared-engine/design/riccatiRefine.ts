@@ -112,16 +112,46 @@ function closedLoop(data: RiccatiData, k: Float64Array): Float64Array {
  * One Newton correction: E solves Aclᵀ E + E Acl + Res = 0 (Kleinman 1968) or
  * Aclᵀ E Acl − E + Res = 0 (Hewer 1971), the Fréchet derivative of the Riccati operator at X
  * applied to E equated to −Res(X); returns X + E.
+ * The Lyapunov equation is solved in balanced coordinates: with Acl_b = D⁻¹·Acl·D (D the
+ * power-of-two diagonal of Parlett–Reinsch balancing without permutation, so exact),
+ * E_b = D·E·D solves the same equation with Acl_b and D·Res·D. This changes nothing for a
+ * balanced Acl (D = I) and keeps the Lyapunov solver's ‖A‖-relative singularity test meaningful
+ * when the states' units differ by orders of magnitude (there ‖Acl‖ is far above its eigenvalues).
  */
 function newtonStep(data: RiccatiData, kind: RiccatiKind, x: Float64Array, ev: RiccatiEvaluation): Float64Array {
   const { n } = data;
-  const aclT = fromFloat64(transpose(closedLoop(data, ev.k), n, n), n, n);
-  const rhs = fromFloat64(ev.res, n, n);
+  const acl = closedLoop(data, ev.k);
+  const d = balancingScale(acl, n);
+  const rhsB = ev.res.slice();
+  if (d) {
+    for (let i = 0; i < n; i++) {
+      for (let j = 0; j < n; j++) {
+        acl[i * n + j] *= d[j]! / d[i]!;
+        rhsB[i * n + j] *= d[i]! * d[j]!;
+      }
+    }
+  }
+  const aclT = fromFloat64(transpose(acl, n, n), n, n);
+  const rhs = fromFloat64(rhsB, n, n);
   const e = toFloat64(kind === "continuous" ? solveContinuousLyapunov(aclT, rhs) : solveDiscreteLyapunov(aclT, rhs));
   const next = x.slice();
-  for (let i = 0; i < n * n; i++) next[i] += e[i]!;
+  if (d) for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) next[i * n + j] += e[i * n + j]! / (d[i]! * d[j]!);
+  else for (let i = 0; i < n * n; i++) next[i] += e[i]!;
   symmetrizeInPlace(next, n);
   return next;
+}
+
+/** Balancing scale d of `a` (Acl_b[i][j] = a[i][j]·d[j]/d[i]), or null when it is all ones or balancing fails. */
+function balancingScale(a: Float64Array, n: number): Float64Array | null {
+  if (!a.every(Number.isFinite)) return null;
+  const scale = new Float64Array(n);
+  try {
+    balanceInPlace(a.slice(), n, false, true, new Int32Array(n), scale);
+  } catch (error) {
+    if (error instanceof EngineError) return null;
+    throw error;
+  }
+  return scale.every((v) => v === 1) ? null : scale;
 }
 
 /**
@@ -154,7 +184,8 @@ function isStable(kind: RiccatiKind, poles: Complex[]): boolean {
 }
 
 /**
- * Symmetrises X, refines it by Newton's method when asked (or automatically when the residual
+ * Symmetrises X, refines it by Newton's method (each Lyapunov equation solved in the balanced
+ * coordinates of A − BK, see `newtonStep`) when asked (or automatically when the residual
  * is above 100·n·ε), and verifies: K finite, A − BK stable, normalised residual ≤ √ε. Newton
  * stops when a step fails to halve the residual, or once the normalised residual is at n·ε.
  */

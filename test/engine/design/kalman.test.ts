@@ -6,6 +6,8 @@ import { kalmanContinuous, kalmanDiscrete } from "../../../shared-engine/design/
 import { lqr } from "../../../shared-engine/design/lqr";
 import { expectAtMost, expectComplexSetsClose, expectMatrixClose, expectRelativeClose, expectEngineError as expectKind } from "../../helpers/assertions";
 import fixture from "../../fixtures/design/riccati.json";
+import precise from "../../fixtures/design/riccati_precise.json";
+import { closedLoopNorm, ENTRYWISE_TOLERANCE, expectEntrywiseClose, expectPolesRelativeClose } from "./riccatiPreciseChecks";
 import { add, fro, invert, matrixOf, mul, scale, tr, type Rows } from "./riccatiTestSystems";
 
 /** Relative residual of AP + PAᵀ − PCᵀV⁻¹CP + GWGᵀ = 0, in plain arrays. */
@@ -27,14 +29,11 @@ function identity(n: number): Rows {
   return Array.from({ length: n }, (_, i) => Array.from({ length: n }, (_, j) => (i === j ? 1 : 0)));
 }
 
-// Cases we do not meet, kept as known failures (STYLE §5). The badly scaled case has Hamiltonian
-// eigenvalues ±1e8 and ±1e-4: relative to ‖H‖ the small pair is 1e-12 from the imaginary axis,
-// below the documented boundary tolerance 10·√ε·‖H‖, so the solver reports
-// "eigenvalue-on-imaginary-axis" (norm-wise it cannot be told from an axis eigenvalue; scipy's
-// own answer has relative residual 2.8e-5).
-const KNOWN_FAILURES: Record<string, string> = {
-  "continuous n=2 m=1 badly scaled (eigenvalues 1e8 and 1e-4)": "Hamiltonian eigenvalue 1e-12·‖H‖ from the axis is rejected as on-axis",
-};
+// Cases we do not meet, kept as known failures (STYLE §5). None at present: the badly scaled
+// case (Hamiltonian eigenvalues ±1e8 and ±1e-4, the small pair 1e-12·‖H‖ from the imaginary axis)
+// is now accepted by the eigenvalue's own condition (riccatiAxis.ts) and refined by Newton's
+// method; riccati_precise.json holds its 80-digit reference.
+const KNOWN_FAILURES: Record<string, string> = {};
 
 describe("kalmanContinuous", () => {
   it("gives L = [√2, 1]ᵀ and P = [[√2, 1], [1, √2]] for a double integrator with force noise", () => {
@@ -55,6 +54,17 @@ describe("kalmanContinuous", () => {
       const tol = Math.max(1e-9, 100 * c.referenceRelativeResidual); // scipy's own residual bounds its accuracy
       expectMatrixClose(f.P, c.X, tol, "P");
       expectMatrixClose(f.L, new Matrix(c.K).transpose(), tol, "L");
+    });
+  }
+
+  for (const c of precise.cases.filter((x) => x.kind === "continuous")) {
+    it(`matches the 80-digit reference through duality entry by entry for ${c.name}`, () => {
+      // Regulator (A, B, Q, R) ↔ filter (Aᵀ, Bᵀ, G = I, W = Q, V = R): P = X, L = Kᵀ, observer poles =
+      // closed-loop poles (generator: test/fixtures/design/generate_riccati_precise.py, mpmath).
+      const f = kalmanContinuous(new Matrix(c.A).transpose(), new Matrix(c.B).transpose(), null, c.Q, c.R);
+      expectEntrywiseClose(f.P, c.X, ENTRYWISE_TOLERANCE, "P");
+      expectEntrywiseClose(f.L.transpose(), c.K, ENTRYWISE_TOLERANCE, "Lᵀ");
+      expectPolesRelativeClose(f.observerPoles, c.closedLoopPoles, closedLoopNorm(c.A, c.B, c.K), ENTRYWISE_TOLERANCE, "observer poles");
     });
   }
 
