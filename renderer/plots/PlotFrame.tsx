@@ -78,6 +78,8 @@ export function PlotFrame(props: PlotFrameProps) {
                   <path d={crossPath(4.5)} stroke={e.style.color} className="lw-mark-stroke" fill="none" />
                   {e.tagged && <path d={markerPath(e.style.marker, 2.2)} transform="translate(8,-6)" fill={e.style.color} stroke="none" />}
                 </g>
+              ) : e.glyph === "markers" ? (
+                <path className="lw-legend-markers" d={markerPath(e.style.marker, 3.5)} transform={`translate(13,${LEGEND_ROW_HEIGHT / 2 - 4})`} fill={e.style.color} stroke={e.style.color} />
               ) : (<>
               <line className="lw-legend-line" x1={0} x2={26} y1={LEGEND_ROW_HEIGHT / 2 - 4} y2={LEGEND_ROW_HEIGHT / 2 - 4} stroke={e.style.color} strokeDasharray={(e.dash ?? e.style.dash) || undefined} />
               <path d={markerPath(e.style.marker, 3.5)} transform={`translate(13,${LEGEND_ROW_HEIGHT / 2 - 4})`} fill={e.style.color} stroke={e.style.color} />

@@ -1,15 +1,21 @@
 /**
  * Time responses (step, disturbance, initial condition): outputs on top, the control input below
  * with its limits dashed, step metrics marked; overlays (e.g. a nonlinear simulation) dashed over
- * the linear prediction. Zoom and pan act on time; both panels follow.
+ * the linear prediction. Zoom and pan act on time; both panels follow. Sampled series (a discrete
+ * model or a held controller input) are drawn by sampledDrawing.ts's rule: inputs as stairs,
+ * outputs as markers at the sample instants, markers only when the data skip samples (a caption
+ * under the legend says which, beside the series' marker); read-outs and CSV give the sample
+ * values themselves, never interpolated ones.
  */
 import { useId, useRef, useState } from "react";
 import { Axis } from "./Axis";
 import { niceDomain } from "./axisModel";
+import { textSize } from "./labelPlacement";
 import { legendFor } from "./legendModel";
 import { PlotFrame, frameHeaderHeight } from "./PlotFrame";
 import { fullPrecision, type PlotVariant } from "./plotTypes";
 import { OVERLAY_DASH, responseModel, type ResponseSeries } from "./responseModel";
+import { markerAt, readoutIndex, sampledCaption, sampledMode } from "./sampledDrawing";
 import type { CsvColumn } from "./toCsv";
 import { clientToSvg, useZoomPan } from "./useZoomPan";
 
@@ -26,25 +32,68 @@ export interface ResponsePlotProps {
 }
 
 const LEFT = 62, RIGHT = 16, GAP = 26, BOTTOM = 46;
+/** Height of one caption row under the legend (one per sampled series). */
+const CAPTION_ROW = 15;
+/** Font size of the captions (plots.css .lw-sampled-caption). */
+const CAPTION_FONT = 10.5;
 
-/** CSV columns: per series time, each output and each control input. */
+/** Greedy word wrap to lines no wider than `maxWidth` by labelPlacement's text estimate (a longer word stays whole). */
+export function wrapWords(text: string, maxWidth: number, fontSize: number): string[] {
+  const lines: string[] = [];
+  let line = "";
+  for (const word of text.split(" ")) {
+    const next = line ? `${line} ${word}` : word;
+    if (line && textSize(next, fontSize).width > maxWidth) {
+      lines.push(line);
+      line = word;
+    } else line = next;
+  }
+  if (line) lines.push(line);
+  return lines;
+}
+
+/**
+ * One caption per sampled series (sampledDrawing.ts sampledCaption): what its period is and how
+ * it is drawn, printed beside its marker under the legend so exported and printed figures say it.
+ * Overlays repeat the caption of their series only when it differs.
+ */
+export function sampledCaptions(series: readonly ResponseSeries[]): { seriesIndex: number; name: string; text: string }[] {
+  const out: { seriesIndex: number; name: string; text: string }[] = [];
+  series.forEach((s, i) => {
+    const text = sampledCaption(s);
+    if (text && !out.some((c) => c.text === text && (series[c.seriesIndex]!.styleIndex ?? c.seriesIndex) === (s.styleIndex ?? i))) out.push({ seriesIndex: i, name: s.name, text });
+  });
+  return out;
+}
+
+/**
+ * CSV columns: per series time, each output and each control input, one row per listed sample
+ * (a sampled series' time column is headed "sample time": its rows are the sample values, not
+ * points of the drawn staircase).
+ */
 export function responseCsv(series: readonly ResponseSeries[]): CsvColumn[] {
   return series.flatMap((s) => [
-    { quantity: `${s.name} time`, unit: "s", values: [...s.time] },
+    { quantity: `${s.name} ${sampledMode(s) === "curve" ? "time" : "sample time"}`, unit: "s", values: [...s.time] },
     ...s.output.map((o, i) => ({ quantity: `${s.name} ${s.outputNames?.[i] ?? `output ${i + 1}`}`, unit: "", values: [...o] })),
     ...(s.control ?? []).map((u, j) => ({ quantity: `${s.name} ${s.controlNames?.[j] ?? `control input ${j + 1}`}`, unit: "", values: [...u] })),
   ]);
 }
 
-/** Read-out at time t: nearest sample of each series, every value in full precision. */
-export function responseReadout(series: readonly ResponseSeries[], t: number): { name: string; time: string; values: string[] }[] {
+/**
+ * Read-out at time t, every value in full precision and never interpolated: for a continuous
+ * series or one drawn as markers, the nearest sample; for a sampled series listing every sample
+ * (drawn as stairs), the sample whose hold interval [t_k, t_{k+1}) contains t, i.e. the value
+ * the staircase shows there. `sample` is k = t_k / T for a sampled series.
+ */
+export function responseReadout(series: readonly ResponseSeries[], t: number): { name: string; time: string; sample?: number; values: string[] }[] {
   return series.flatMap((s) => {
-    if (s.time.length === 0) return [];
-    let best = 0;
-    for (let k = 1; k < s.time.length; k++) if (Math.abs(s.time[k]! - t) < Math.abs(s.time[best]! - t)) best = k;
+    const mode = sampledMode(s);
+    const best = readoutIndex(s.time, t, mode === "stairs");
+    if (best < 0) return [];
     return [{
       name: s.name,
       time: fullPrecision(s.time[best]),
+      ...(mode === "curve" ? {} : { sample: Math.round(s.time[best]! / s.sampled!.period) }),
       values: [
         ...s.output.map((o, i) => `${s.outputNames?.[i] ?? `y${i + 1}`} ${fullPrecision(o[best])}`),
         ...(s.control ?? []).map((u, j) => `${s.controlNames?.[j] ?? `u${j + 1}`} ${fullPrecision(u[best])}`),
@@ -58,8 +107,14 @@ export function ResponsePlot(props: ResponsePlotProps) {
   const svgRef = useRef<SVGSVGElement>(null);
   const screen = variant === "screen";
   const [hover, setHover] = useState<number | null>(null);
-  const legend = legendFor(series).map((e, i) => ({ ...e, dash: series[i]!.overlay ? OVERLAY_DASH : undefined }));
-  const top = frameHeaderHeight(legend, width) + 6;
+  // A series drawn as markers only shows its marker alone in the legend.
+  const legend = legendFor(series).map((e, i) => ({ ...e, dash: series[i]!.overlay ? OVERLAY_DASH : undefined, ...(sampledMode(series[i]!) === "markers" ? { glyph: "markers" as const } : {}) }));
+  const captions = sampledCaptions(series);
+  // Caption lines wrapped to the figure's width (text starts 44 units in, like legend labels).
+  const captionLines = captions.map((c) => wrapWords(c.text, width - 44 - 8, CAPTION_FONT));
+  const captionTop = frameHeaderHeight(legend, width);
+  const rowsBefore = captionLines.map((_, i) => captionLines.slice(0, i).reduce((n, l) => n + l.length, 0));
+  const top = captionTop + captionLines.reduce((n, l) => n + l.length, 0) * CAPTION_ROW + 6;
   const base = niceDomain(series.flatMap((s) => s.time), 0, [0]);
   const zoom = useZoomPan({ kind: "linear", base, range: [LEFT, width - RIGHT] }, { kind: "linear", base: [0, 1], range: [height - BOTTOM, top] }, { lockY: true, enabled: screen, svgRef });
   const model = responseModel({ series, width, top, height: height - top - BOTTOM, left: LEFT, right: RIGHT, gap: GAP, timeView: zoom.x });
@@ -75,7 +130,7 @@ export function ResponsePlot(props: ResponsePlotProps) {
       height={height}
       legend={legend}
       variant={variant}
-      description={`Outputs${model.control ? " and control input" : ""} against time for ${series.length} series.`}
+      description={`Outputs${model.control ? " and control input" : ""} against time for ${series.length} series.${captions.map((c) => ` ${c.name}: ${c.text}.`).join("")}`}
       zoomed={zoom.zoomed}
       onReset={zoom.reset}
       csv={() => responseCsv(series)}
@@ -96,12 +151,24 @@ export function ResponsePlot(props: ResponsePlotProps) {
             {readout.length === 0 ? (
               <tr><td className="hint">Point at the plot to read values; wheel zooms time, drag pans, double-click resets.</td></tr>
             ) : readout.map((r) => (
-              <tr key={r.name}><th scope="row">{r.name}</th><td>t {r.time} s</td><td>{r.values.join("   ")}</td></tr>
+              <tr key={r.name}><th scope="row">{r.name}</th><td>t {r.time} s{r.sample !== undefined ? ` (sample ${r.sample})` : ""}</td><td>{r.values.join("   ")}</td></tr>
             ))}
           </tbody>
         </table>
       }
     >
+      {captions.length > 0 && (
+        <g className="lw-sampled-captions">
+          {captions.map((c, i) => (
+            <g key={i} transform={`translate(12,${captionTop + rowsBefore[i]! * CAPTION_ROW + CAPTION_ROW / 2})`}>
+              <path d={markerAt(model.styles[c.seriesIndex]!.marker, 3.5, 13, 0)} fill={model.styles[c.seriesIndex]!.color} stroke={model.styles[c.seriesIndex]!.color} />
+              {captionLines[i]!.map((line, j) => (
+                <text key={j} className="lw-sampled-caption" x={32} y={j * CAPTION_ROW} dy="0.32em">{line}</text>
+              ))}
+            </g>
+          ))}
+        </g>
+      )}
       {panels.map(({ key, panel, title: axisTitle }) => (
         <g key={key} className={`lw-panel lw-panel-${key}`}>
           <defs><clipPath id={`${clip}-${key}`}><rect x={LEFT} y={panel.top} width={model.width} height={panel.height} /></clipPath></defs>
@@ -115,7 +182,10 @@ export function ResponsePlot(props: ResponsePlotProps) {
               </g>
             ))}
             {panel.paths.map((p, i) => (
-              <path key={i} className="lw-series-line" d={p.path} stroke={p.style.color} strokeDasharray={p.dash || undefined} fill="none" />
+              <g key={i}>
+                {p.path && <path className={p.drawing === "join-and-markers" ? "lw-series-line lw-sample-join" : p.drawing === "stairs" ? "lw-series-line lw-series-stairs" : "lw-series-line"} d={p.path} stroke={p.style.color} strokeDasharray={p.dash || undefined} fill="none" />}
+                {p.markers && p.markers.count > 0 && <path className="lw-sample-markers" data-count={p.markers.count} d={p.markers.path} fill={p.style.color} stroke={p.style.color} />}
+              </g>
             ))}
             {key === "control" && model.limits.map((l, i) => (
               <g key={i} className="lw-limit">

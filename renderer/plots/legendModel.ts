@@ -6,8 +6,11 @@ export interface LegendEntry {
   style: SeriesStyle;
   /** Overlay entries (e.g. a nonlinear simulation) draw their own dash. */
   dash?: string;
-  /** Pole maps show the × glyph instead of a line; `tagged` adds the series' marker tag. */
-  glyph?: "pole";
+  /**
+   * Pole maps show the × glyph instead of a line; `tagged` adds the series' marker tag.
+   * "markers": the series' marker alone, no line (a sampled response drawn as markers only).
+   */
+  glyph?: "pole" | "markers";
   tagged?: boolean;
 }
 

@@ -1,7 +1,9 @@
 /**
  * Time-response model: an outputs panel and (when any series has one) a control-input panel on a
  * shared time axis, input limits as dashed lines, step metrics as marks (rise-time band,
- * ±2 % settling band, overshoot peak), overlays dashed over their primary series. Pure.
+ * ±2 % settling band, overshoot peak), overlays dashed over their primary series. A series with
+ * `sampled: { period }` is drawn by sampledDrawing.ts's rule (control inputs as stairs, outputs
+ * as markers at the sample instants; markers only when the data skip samples). Pure.
  */
 import { scaleLinear, type ScaleLinear } from "d3";
 import { linearTicks, niceDomain, tickLabel, type AxisModel } from "./axisModel";
@@ -9,6 +11,7 @@ import { placeLabels, textSize, type Box, type LabelRequest } from "./labelPlace
 import { seriesStyle, type SeriesStyle } from "./palette";
 import { polylinePath, toHundredths } from "./polylinePath";
 import { isDrawable, type Domain } from "./plotTypes";
+import { markerRadius, markersPath, panelDrawing, smallestSpacing, stairsPath, type SampledOption } from "./sampledDrawing";
 
 export interface ResponseMetrics {
   riseTime?: number | null;
@@ -35,6 +38,11 @@ export interface ResponseSeries {
   /** An overlay (e.g. the nonlinear simulation) is drawn dashed in the colour of `styleIndex`. */
   overlay?: boolean;
   styleIndex?: number;
+  /**
+   * Sampled every `period` seconds (a discrete model, or a sampled controller's held input);
+   * null or absent: a continuous response, its samples joined by straight lines.
+   */
+  sampled?: SampledOption | null;
 }
 
 export const OVERLAY_DASH = "6 3";
@@ -63,12 +71,28 @@ export interface MetricLabel {
   y: number;
 }
 
+/**
+ * One drawn channel. `drawing` says what `path` is: "curve" (samples joined, continuous),
+ * "stairs" (a held input), "join-and-markers" (a thin guide between consecutive samples, the
+ * data in `markers`) or "markers" (path empty, markers only). `markers` is the marker path and
+ * the number of markers drawn (samples in view), null for curves and stairs.
+ */
+export interface ResponsePath {
+  seriesIndex: number;
+  channel: number;
+  path: string;
+  style: SeriesStyle;
+  dash: string;
+  drawing: "curve" | "stairs" | "join-and-markers" | "markers";
+  markers: { path: string; count: number } | null;
+}
+
 export interface ResponsePanel {
   y: ScaleLinear<number, number>;
   axis: AxisModel;
   top: number;
   height: number;
-  paths: { seriesIndex: number; channel: number; path: string; style: SeriesStyle; dash: string }[];
+  paths: ResponsePath[];
 }
 
 export interface ResponseModel {
@@ -141,11 +165,23 @@ export function responseModel(input: ResponseModelInput): ResponseModel {
       (k) => toHundredths(x(s.time[k]!)),
       (k) => toHundredths(y(vals[k] as number)),
     );
+  // Marker size from the spacing of a series' samples on screen.
+  const pxPerSecond = plotWidth / Math.max(tDomain[1] - tDomain[0], Number.MIN_VALUE);
+  const channelOf = (s: ResponseSeries, si: number, c: number, vals: readonly (number | null)[], y: ScaleLinear<number, number>, panel: "outputs" | "control"): ResponsePath => {
+    const style = styles[si]!;
+    const base = { seriesIndex: si, channel: c, style, dash: dashOf(s, style) };
+    const drawing = panelDrawing(s, panel);
+    if (drawing === "curve") return { ...base, drawing, path: pathOf(s, vals, y), markers: null };
+    if (drawing === "stairs") return { ...base, drawing, path: stairsPath(s.time, vals, s.sampled!.period, x, y), markers: null };
+    const radius = markerRadius(smallestSpacing(s.time) * pxPerSecond);
+    const markers = markersPath(s.time, vals, tDomain, style.marker, radius, x, y);
+    return { ...base, drawing, path: drawing === "join-and-markers" ? pathOf(s, vals, y) : "", markers };
+  };
 
   const outputs: ResponsePanel = {
     y: outY, top, height: outH,
     axis: linearTicks(outDomain, [top + outH, top], Math.max(3, Math.round(outH / 45))),
-    paths: series.flatMap((s, si) => s.output.map((o, c) => ({ seriesIndex: si, channel: c, path: pathOf(s, o, outY), style: styles[si]!, dash: dashOf(s, styles[si]!) }))),
+    paths: series.flatMap((s, si) => s.output.map((o, c) => channelOf(s, si, c, o, outY, "outputs"))),
   };
 
   let control: ResponsePanel | null = null;
@@ -162,7 +198,7 @@ export function responseModel(input: ResponseModelInput): ResponseModel {
     control = {
       y: cY, top: cTop, height: ctlH,
       axis: linearTicks(cDomain, [cTop + ctlH, cTop], Math.max(3, Math.round(ctlH / 40))),
-      paths: series.flatMap((s, si) => (s.control ?? []).map((u, c) => ({ seriesIndex: si, channel: c, path: pathOf(s, u, cY), style: styles[si]!, dash: dashOf(s, styles[si]!) }))),
+      paths: series.flatMap((s, si) => (s.control ?? []).map((u, c) => channelOf(s, si, c, u, cY, "control"))),
     };
     // Label text sits 4 px above its line (or 12 px below, to its baseline); a label that would
     // leave the panel goes to the other side of its line.

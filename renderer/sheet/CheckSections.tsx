@@ -48,7 +48,7 @@ export function DisturbanceSection({ model, number }: { model: SheetModel; numbe
           title={`Response to a step of ${fullDigits(d.size)} in ${d.disturbance} (${d.loop === "closed-loop" ? "closed loop" : "open loop"}, deviations from rest)`}
           outputLabel={labelWithUnit("Output deviation", outputUnit)}
           controlLabel={labelWithUnit("Control input", labels.inputUnits[0])}
-          series={[{ name: model.input.result.name, time: d.time, output: d.output, outputNames: d.outputNames, control: d.control, controlNames: labels.inputs }]}
+          series={[{ name: model.input.result.name, time: d.time, output: d.output, outputNames: d.outputNames, control: d.control, controlNames: labels.inputs, sampled: model.sampleTime !== null && model.sampleTime > 0 ? { period: model.sampleTime } : null }]}
         />
       </div>
       <KeyValues rows={disturbanceRows(model.input.result, outputUnit, w >= 0 ? labels.disturbanceUnits[w] ?? "" : "")} />
@@ -84,6 +84,8 @@ export function NonlinearCheckSection({ model, number }: { model: SheetModel; nu
               controlNames: n.inputNames,
               controlLimits: firstInput ? { lower: firstInput.min ?? null, upper: firstInput.max ?? null } : null,
               styleIndex: 0,
+              // A sampled controller on the continuous plant: only the held input follows the sampled rule.
+              sampled: n.controller === "continuous" ? null : { period: n.controller, outputs: "continuous" },
             },
             { name: "Linear prediction", time: n.time, output: n.linearOutput, outputNames: n.outputNames, overlay: true, styleIndex: 1 },
           ]}

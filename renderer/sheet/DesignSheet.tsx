@@ -33,6 +33,9 @@ export const SHEET_CAUTIONS = [
 ] as const;
 
 const PLOT_WIDTH = 640;
+
+/** The plots' sampled option for a loop sampled every T seconds (null: continuous). */
+const sampledEvery = (T: number | null | undefined): { period: number } | null => (typeof T === "number" && T > 0 ? { period: T } : null);
 const count = (n: number, noun: string): string => `${n} ${noun}${n === 1 ? "" : "s"}`;
 
 function MarginsSection({ model }: { model: SheetModel }) {
@@ -80,7 +83,7 @@ function StepSection({ model }: { model: SheetModel }) {
           title={`Step response, ${s.loop}`}
           outputLabel={model.labels.outputUnits[0] ? `Output (${model.labels.outputUnits[0]})` : "Output"}
           controlLabel={model.labels.inputUnits[0] ? `Control input (${model.labels.inputUnits[0]})` : "Control input"}
-          series={[{ name: model.input.result.name, time: s.time, output: s.output, outputNames: s.outputNames, control: s.control, controlNames: model.labels.inputs, metrics: { riseTime: s.riseTime, settlingTime: s.settlingTime, overshootPct: s.overshootPct, peak: s.peak, peakTime: s.peakTime, steadyStateValue: s.steadyStateValue } }]}
+          series={[{ name: model.input.result.name, time: s.time, output: s.output, outputNames: s.outputNames, control: s.control, controlNames: model.labels.inputs, metrics: { riseTime: s.riseTime, settlingTime: s.settlingTime, overshootPct: s.overshootPct, peak: s.peak, peakTime: s.peakTime, steadyStateValue: s.steadyStateValue }, sampled: sampledEvery(model.sampleTime) }]}
         />
       </div>
       <KeyValues rows={metrics} />

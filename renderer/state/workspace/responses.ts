@@ -11,6 +11,7 @@
  * design are not in this loop; a note says so when the variant has them.
  */
 import type { EngineBridge, ModelJson, PlantSpec, SimulationResult, StepParams, StepResult, VariantResult, VariantSpec } from "../../../shared-engine/api/contract";
+import type { ResponseSeries } from "../../plots/responseModel";
 import type { InputSequence } from "./inputSequence";
 
 export type ResponseKind = "disturbance" | "initial" | "sequence";
@@ -193,6 +194,11 @@ export interface ResponseData {
   outputNames: string[];
   control: number[][];
   controlNames: string[];
+  /**
+   * Sample period (s) of the model the response ran on, null when continuous: the plot draws the
+   * held control inputs as stairs and the outputs as markers at the sample instants.
+   */
+  sampleTime: number | null;
   /** Step metrics of the first output (disturbance step only). */
   metrics: { settlingTime: number | null; peak: number; peakTime: number; steadyStateValue: number | null } | null;
   notes: string[];
@@ -213,6 +219,7 @@ export function responseData(kind: ResponseKind, target: ResponseTarget, rm: Res
     outputNames: rm.outputNames,
     control,
     controlNames: control.length ? rm.inputNames : [],
+    sampleTime: rm.sampleTime,
     metrics: step ? { settlingTime: step.settlingTimeSec, peak: step.peak, peakTime: step.peakTimeSec, steadyStateValue: step.steadyStateValue } : null,
     notes: [...rm.notes, ...answer.diagnostics.warnings],
   };
@@ -316,6 +323,35 @@ export function createResponsesController(bridge: EngineBridge): ResponsesContro
   };
 }
 
+/**
+ * Sample period (s) of a design run's loop, null when continuous: the closed loop's own, else the
+ * discretization's, else the (sampled) plant's (the comparison's resultSampleTime rule).
+ */
+export function sampleTimeOf(result: VariantResult | null): number | null {
+  const t = result?.closedLoop?.sampleTime ?? result?.discrete?.sampleTime ?? result?.plant?.sampleTime ?? null;
+  return typeof t === "number" && t > 0 ? t : null;
+}
+
+/**
+ * The plot series of a shown response: one series named after the variant, in its palette slot,
+ * sampled every `data.sampleTime` when the model is sampled; the input limits when there is one
+ * control input (or one limit).
+ */
+export function responseSeriesOf(data: ResponseData, name: string, styleIndex: number, limits: readonly { lower: number | null; upper: number | null }[]): ResponseSeries {
+  return {
+    name,
+    time: data.time,
+    output: data.output,
+    outputNames: data.outputNames,
+    control: data.control.length ? data.control : undefined,
+    controlNames: data.controlNames,
+    metrics: data.metrics ? { peak: data.metrics.peak, peakTime: data.metrics.peakTime } : null,
+    controlLimits: data.control.length === 1 || limits.length === 1 ? (limits[0] ?? null) : null,
+    styleIndex,
+    sampled: data.sampleTime !== null ? { period: data.sampleTime } : null,
+  };
+}
+
 /** VariantResult.disturbanceStep as a shown response (no request needed). */
 export function disturbanceStepFromResult(result: VariantResult, inputNames: readonly string[]): ResponseData | null {
   const d = result.disturbanceStep;
@@ -329,6 +365,7 @@ export function disturbanceStepFromResult(result: VariantResult, inputNames: rea
     outputNames: d.outputNames,
     control: d.control ?? [],
     controlNames: d.control ? [...inputNames] : [],
+    sampleTime: sampleTimeOf(result),
     metrics: { settlingTime: d.settlingTime, peak: d.peakDeviation, peakTime: d.peakTime, steadyStateValue: d.steadyStateValue },
     notes: d.status === "settled" ? [] : [d.status === "unstable" ? "The loop is unstable: the response grows." : "The response has not settled within the horizon."],
   };

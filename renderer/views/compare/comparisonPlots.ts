@@ -20,6 +20,7 @@ import { poleZeroFullView, poleZeroPlotArea } from "../../plots/PoleZeroMap";
 import type { PoleZeroSeries } from "../../plots/poleZeroModel";
 import { poleZoomWindow, type PoleWindow } from "../../plots/poleWindow";
 import type { ResponseSeries } from "../../plots/responseModel";
+import { sampledMode } from "../../plots/sampledDrawing";
 import { formatNumber, type ComparedVariant } from "../../state/compare/compareTable";
 
 /**
@@ -117,22 +118,33 @@ export function poleZoomFor(group: PoleMapGroup, width: number, height: number):
 
 /**
  * The step responses of the compared variants on one time axis (seconds for every domain), and
- * a note naming the sampled ones: their responses exist only at the sample instants the variant
- * lists, and the response plot joins those samples with straight lines (it has no marker or
- * staircase mode), which the note says. Empty note when every variant is continuous.
+ * a note naming the sampled ones. A sampled variant's series carries its period, so the plot
+ * draws it as what it is (sampledDrawing.ts): the held control input as stairs and the outputs
+ * as markers at the sample instants when its step lists every sample; markers only when its
+ * step grid skips samples (the demo's 1 s loop listed every 5 s), since the held input changes
+ * at instants the data do not list. The note says which, in words. Empty note when every
+ * variant is continuous.
  */
 export function comparisonSteps(compared: readonly ComparedVariant[]): { series: ResponseSeries[]; note: string } {
   const series: ResponseSeries[] = [];
-  const sampled: string[] = [];
+  const stairs: string[] = [];
+  const markers: string[] = [];
   for (const c of compared) {
     const step = c.result?.step;
     if (!step) continue;
-    series.push({ name: c.name, time: step.time, output: step.output, outputNames: step.outputNames, ...(step.control ? { control: step.control } : {}), metrics: step, styleIndex: c.styleIndex });
     const T = resultSampleTime(c.result);
-    if (T !== null) sampled.push(`${c.name} (T = ${periodText(T)})`);
+    const s: ResponseSeries = { name: c.name, time: step.time, output: step.output, outputNames: step.outputNames, ...(step.control ? { control: step.control } : {}), metrics: step, styleIndex: c.styleIndex, sampled: T !== null ? { period: T } : null };
+    series.push(s);
+    if (T === null) continue;
+    (sampledMode(s) === "stairs" ? stairs : markers).push(`${c.name} (T = ${periodText(T)})`);
   }
-  const note = sampled.length === 0
-    ? ""
-    : `Sampled: ${sampled.join("; ")}. ${sampled.length === 1 ? "Its response is" : "Their responses are"} computed at the listed sample instants only; the lines join those samples.`;
+  const sentences: string[] = [];
+  if (stairs.length > 0) {
+    sentences.push(`${stairs.join("; ")} ${stairs.length === 1 ? "lists" : "list"} every sample: the held control input is drawn as stairs, the outputs as markers at the sample instants.`);
+  }
+  if (markers.length > 0) {
+    sentences.push(`${markers.join("; ")} ${markers.length === 1 ? "lists" : "list"} only some of the sample instants (the step grid skips samples): outputs and control input are drawn as markers at those instants, not joined, since the input changes at the samples between them.`);
+  }
+  const note = sentences.length === 0 ? "" : `Sampled: ${sentences.join(" Sampled: ")}`;
   return { series, note };
 }

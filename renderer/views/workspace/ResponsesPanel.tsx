@@ -8,6 +8,7 @@ import {
   inputLimitsOf,
   responseHorizon,
   responseModelOf,
+  responseSeriesOf,
   type ResponseKind,
   type ResponseModel,
   type ResponseTarget,
@@ -65,22 +66,7 @@ export function ResponsesPanel({ bridge, plant, variant, result, styleIndex, wid
 
   const data = state.data;
   const series: ResponseSeries[] = useMemo(
-    () =>
-      data
-        ? [
-            {
-              name: variant.name ?? variant.id,
-              time: data.time,
-              output: data.output,
-              outputNames: data.outputNames,
-              control: data.control.length ? data.control : undefined,
-              controlNames: data.controlNames,
-              metrics: data.metrics ? { peak: data.metrics.peak, peakTime: data.metrics.peakTime } : null,
-              controlLimits: data.control.length === 1 || limits.length === 1 ? (limits[0] ?? null) : null,
-              styleIndex,
-            },
-          ]
-        : [],
+    () => (data ? [responseSeriesOf(data, variant.name ?? variant.id, styleIndex, limits)] : []),
     [data, variant.name, variant.id, styleIndex, limits[0]?.lower, limits[0]?.upper],
   );
   const busy = state.status === "working";

@@ -86,10 +86,12 @@ export function ResultPlots({ store, variant, result, styleIndex, width }: Props
               control: step.control,
               metrics: { riseTime: step.riseTime, settlingTime: step.settlingTime, overshootPct: step.overshootPct, peak: step.peak, peakTime: step.peakTime, steadyStateValue: step.steadyStateValue },
               styleIndex,
+              // A sampled loop: held input as stairs, outputs as markers at the sample instants.
+              sampled: ts !== null ? { period: ts } : null,
             },
           ]
         : null,
-    [step, designName, styleIndex],
+    [step, designName, styleIndex, ts],
   );
   const bodeSeries: BodeSeries[] | null = useMemo(
     () =>

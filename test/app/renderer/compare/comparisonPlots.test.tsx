@@ -122,9 +122,14 @@ describe("pole-zero maps of the comparison, one per time domain", () => {
     }
     expect(zMap).toContain(`>${names[DEMO_SAMPLED]}</text>`);
     expect(sMap).not.toContain(`>${names[DEMO_SAMPLED]}</text>`);
-    // Step plot: both domains on one time axis, the sampled one named in the note under it.
+    // Step plot: both domains on one time axis, the sampled one named in the note under it. Its
+    // step lists times 0, 5, …, 60, 70, …, 400 s with T = 1 s (skips samples): markers only, said so.
     expect(html).toContain('data-testid="step-caption"');
-    expect(html).toMatch(/Sampled: LQR with integral action, sampled at 1 s \(nonlinear check\) \(T = 1 s\)\. Its response is computed at the listed sample instants only/);
+    expect(html).toMatch(/Sampled: LQR with integral action, sampled at 1 s \(nonlinear check\) \(T = 1 s\) lists only some of the sample instants \(the step grid skips samples\): outputs and control input are drawn as markers at those instants, not joined/);
+    const stepPlot = html.split('class="compare-step"')[1]!;
+    expect(stepPlot).toContain("T = 1 s, data at the listed instants: markers only (the samples between are not listed)");
+    expect(stepPlot).toContain('class="lw-sample-markers"');
+    expect(stepPlot).not.toContain("lw-series-stairs");
     store.dispose();
   });
 
