@@ -1,11 +1,13 @@
 /**
  * `loopwright controller`: a variant's controller as sampled difference equations, printed for
  * a software engineer (named matrix rows and columns, the execution order per sample, the
- * cautions) or as the "loopwright-controller" JSON (docs/project-format.md, "Controller export").
+ * cautions), as the "loopwright-controller" JSON (docs/project-format.md, "Controller export"),
+ * or as one self-contained C99 source file (`--format c`, shared-engine/project/controllerSource).
  */
 import { writeFile } from "node:fs/promises";
 import { loadProjectText } from "../../shared-engine/project";
 import { controllerExport, type ControllerExport } from "../../shared-engine/project/controllerExport";
+import { CONTROLLER_CAUTIONS, controllerSource } from "../../shared-engine/project/controllerSource";
 import { EngineError } from "../../shared-engine/errors";
 import { formatReal } from "../../shared-engine/format";
 import { describeOptions, parseArgs, type OptionSpec } from "./args";
@@ -15,15 +17,16 @@ import type { Command } from "./commands";
 const controllerOptions: Record<string, OptionSpec> = {
   variant: { value: true, valueName: "ID", description: "the variant whose controller to export (required)" },
   period: { value: true, valueName: "T", description: "sample period in seconds (required for a continuous design; a sampled design runs at its own period)" },
-  json: { value: false, description: "print the controller as JSON (format \"loopwright-controller\")" },
+  format: { value: true, valueName: "text|json|c", description: "text (default): the equations for reading; json: format \"loopwright-controller\"; c: one C99 source file" },
+  json: { value: false, description: "the same as --format json" },
   out: { value: true, valueName: "FILE", description: "write the output to FILE instead of stdout" },
 };
 
-export const CONTROLLER_CAUTIONS = [
-  "Simulation is not validation: test the controller on the real equipment under supervision.",
-  "Keep independent safety interlocks; this controller is not a safety function.",
-  "Follow the applicable codes and licensed engineering practice before it runs on equipment.",
-];
+/** The cautions every export carries; one list in the engine, so the C file says the same words. */
+export { CONTROLLER_CAUTIONS };
+
+const FORMATS = ["text", "json", "c"] as const;
+type OutputFormat = (typeof FORMATS)[number];
 
 export interface ControllerDeps {
   writeFile(path: string, text: string): Promise<void>;
@@ -84,12 +87,20 @@ export function formatController(c: ControllerExport): string {
 export function createControllerCommand(deps: ControllerDeps): Command {
   return {
     name: "controller",
-    summary: "export a variant's controller as sampled difference equations (text or JSON)",
+    summary: "export a variant's controller as sampled difference equations (text, JSON or C source)",
     help: () =>
-      `Usage: loopwright controller FILE --variant ID [--period T] [--json] [--out FILE]\n\nPrints the controller of one variant as the difference equations that run every T seconds:\nxc[k+1] = Ac·xc[k] + Bc·[δr; δy] + Bsat·(u − u_unsat), u_unsat = u0 + Cc·xc[k] + Dc·[δr; δy],\nu = sat(u_unsat), with named matrix rows and columns, the limits, the anti-windup, the\nexecution order per sample, and checks that the equations reproduce the design.\nA continuous design needs --period; a sampled design runs at its own period.\nExit code 0 when exported with every check passed, 1 when the variant cannot be exported or a\ncheck failed (the output is still printed), 2 for usage errors.\n\nOptions:\n${describeOptions(controllerOptions)}\n\n${CONTROLLER_CAUTIONS.join("\n")}\n`,
+      `Usage: loopwright controller FILE --variant ID [--period T] [--format text|json|c] [--json] [--out FILE]\n\nPrints the controller of one variant as the difference equations that run every T seconds:\nxc[k+1] = Ac·xc[k] + Bc·[δr; δy] + Bsat·(u − u_unsat), u_unsat = u0 + Cc·xc[k] + Dc·[δr; δy],\nu = sat(u_unsat), with named matrix rows and columns, the limits, the anti-windup, the\nexecution order per sample, and checks that the equations reproduce the design.\n--format c writes the same controller as one C99 source file (plain double, no dynamic\nmemory, only <math.h>): a state struct, lw_<variant>_init and lw_<variant>_step, called every\nT seconds with the absolute references and measurements; it returns the limited commands.\nA continuous design needs --period; a sampled design runs at its own period.\nExit code 0 when exported with every check passed, 1 when the variant cannot be exported or a\ncheck failed (the output is still printed), 2 for usage errors.\n\nOptions:\n${describeOptions(controllerOptions)}\n\n${CONTROLLER_CAUTIONS.join("\n")}\n`,
     async run(args, io) {
       const { options, positionals } = parseArgs(args, controllerOptions, "controller");
       if (positionals.length !== 1) throw usageError("controller needs exactly one project FILE");
+      const formatOption = options.get("format");
+      if (formatOption !== undefined && !(FORMATS as readonly unknown[]).includes(formatOption)) {
+        throw usageError(`--format must be text, json or c (got ${String(formatOption)})`);
+      }
+      if (options.has("json") && formatOption !== undefined && formatOption !== "json") {
+        throw usageError(`--json means --format json; it conflicts with --format ${String(formatOption)}`);
+      }
+      const format: OutputFormat = options.has("json") ? "json" : ((formatOption as OutputFormat | undefined) ?? "text");
       const variantId = options.get("variant");
       if (typeof variantId !== "string") throw usageError("controller needs --variant ID (the variant whose controller to export)");
       let sampleTime: number | undefined;
@@ -111,7 +122,11 @@ export function createControllerCommand(deps: ControllerDeps): Command {
       if (!variant) throw new EngineError("invalid-argument", `No variant "${variantId}" in the project; variants are: ${loaded.project.variants.map((v) => v.id).join(", ") || "none"}`, {});
       const plant = loaded.project.plants.find((p) => p.id === variant.plant)!;
       const exported = controllerExport(plant, variant, sampleTime === undefined ? {} : { sampleTime });
-      const output = options.has("json") ? `${JSON.stringify(exported, null, 2)}\n` : formatController(exported);
+      const output = format === "json" ? `${JSON.stringify(exported, null, 2)}\n` : format === "c" ? controllerSource(exported).text : formatController(exported);
+      if (format === "c") {
+        // The checks are in the file's header comment; a failed one must not pass unnoticed.
+        for (const k of exported.checks) if (!k.passed) io.stderr(`warning: check ${k.name} failed: ${k.detail}\n`);
+      }
       const target = options.get("out");
       if (typeof target === "string") {
         try {

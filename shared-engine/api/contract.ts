@@ -61,6 +61,15 @@ export interface EngineMethods {
     params: { plant: PlantSpec; variant: VariantSpec };
     result: VariantResult & { preview: boolean };
   };
+  /**
+   * One variant's sampled controller as C99 source, the text `loopwright controller --format c`
+   * writes (`sampleTime` only for a continuous design). `checksPassed` false: the file's header
+   * says which implementation check failed.
+   */
+  "project.controllerSource": {
+    params: { plant: PlantSpec; variant: VariantSpec; sampleTime?: number };
+    result: { text: string; fileName: string; checksPassed: boolean; warnings: string[] };
+  };
   /** Designs every variant (or one) of a whole project given as data. */
   "project.evaluate": {
     params: { project: unknown; variant?: string };
@@ -144,6 +153,7 @@ export const ENGINE_METHODS: readonly EngineMethod[] = [
   "project.evaluateVariant",
   "project.previewVariant",
   "project.evaluate",
+  "project.controllerSource",
   "model.fromTransferFunction",
   "model.fromZeroPoleGain",
   "model.discretize",

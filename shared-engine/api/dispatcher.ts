@@ -6,7 +6,8 @@
 import { EngineError } from "../errors";
 import { eigenvalues } from "../linalg";
 import { ENGINE_VERSION } from "../version";
-import { evaluateProject, evaluateVariant, loadProjectText, loadProjectValue, previewVariant } from "../project";
+import { controllerSource, evaluateProject, evaluateVariant, loadProjectText, loadProjectValue, previewVariant } from "../project";
+import { controllerExport } from "../project/controllerExport";
 import { ENGINE_METHODS, type EngineMethod, type EngineMethods, isEngineMethod } from "./contract";
 import { requireMatrixParam, requireObjectParams } from "./params";
 import { requireFiniteResult, withPositiveZeros, type RequestContext } from "./handlerSupport";
@@ -65,6 +66,18 @@ const handlers: { [M in EngineMethod]: Handler<M> } = {
     const p = requireObjectParams(params, "project.evaluate");
     if (p.variant !== undefined && typeof p.variant !== "string") throw new EngineError("invalid-argument", "project.evaluate: variant must be a variant id", { field: "variant" });
     return evaluateProject(loadProjectValue(p.project), { variant: p.variant as string | undefined });
+  },
+  "project.controllerSource": (params) => {
+    const p = requireObjectParams(params, "project.controllerSource");
+    const T = p.sampleTime;
+    if (T !== undefined && !(typeof T === "number" && Number.isFinite(T) && T > 0)) {
+      throw new EngineError("invalid-argument", `project.controllerSource: sampleTime must be a positive number of seconds (it is ${String(T)})`, { field: "sampleTime" });
+    }
+    // Same validation as project.evaluateVariant, so errors carry JSON paths.
+    const { project } = loadProjectValue({ format: "loopwright-project", version: 1, name: "request", plants: [p.plant], variants: [p.variant] });
+    const exported = controllerExport(project.plants[0]!, project.variants[0]!, T === undefined ? {} : { sampleTime: T as number });
+    const source = controllerSource(exported);
+    return { text: source.text, fileName: `${source.prefix}.c`, checksPassed: exported.checks.every((c) => c.passed), warnings: exported.warnings };
   },
   ...modelHandlers,
   ...analysisHandlers,

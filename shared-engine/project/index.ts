@@ -11,3 +11,4 @@ export { previewVariant, previewCovers, type VariantPreview } from "./preview";
 export { REQUIREMENT_METRICS, checkRequirements } from "./requirements";
 export { buildPlantModel } from "./buildPlant";
 export { fingerprint, canonicalJson, sha256Hex, utf8Bytes, FINGERPRINT_PREFIX } from "./fingerprint";
+export { controllerSource, cDoubleLiteral, CONTROLLER_CAUTIONS, type ControllerSource } from "./controllerSource";

@@ -11,3 +11,4 @@ export * from "./transferFunctionGrid";
 export * from "./zeroPoleGainGrid";
 export * from "./variantSignals";
 export * from "./plantFormEdits";
+export * from "./controllerDownload";

@@ -1,5 +1,5 @@
 import { useEffect, useState } from "react";
-import type { VariantSpec } from "../../../shared-engine/api/contract";
+import type { EngineBridge, PlantSpec, VariantSpec } from "../../../shared-engine/api/contract";
 import { formatReal } from "../../../shared-engine/format";
 import {
   applyBrysonRule,
@@ -19,7 +19,10 @@ import {
   sliderToWeight,
   updateVariant,
   weightToSlider,
+  downloadTextFile,
+  exportControllerSource,
   SLIDER_STEPS,
+  type ControllerDownloadStatus,
   type PlantDimensions,
   type WorkspaceState,
   type WorkspaceStore,
@@ -33,9 +36,11 @@ interface Props {
   variant: VariantSpec;
   dims: PlantDimensions;
   names: { states: string[]; inputs: string[]; outputs: string[] };
+  bridge: EngineBridge;
+  plant: PlantSpec;
 }
 
-/** The design of one variant: state feedback (poles or LQR), integral action, observer and sampling. */
+/** The design of one variant: state feedback (poles or LQR), integral action, observer, sampling and the controller export. */
 export function DesignPanel(props: Props) {
   const { store, variant, dims } = props;
   const method = variant.stateFeedback?.method ?? "none";
@@ -55,6 +60,7 @@ export function DesignPanel(props: Props) {
       <IntegralEditor {...props} />
       <ObserverEditor {...props} />
       <SamplingEditor {...props} />
+      <ControllerExportRow {...props} />
     </div>
   );
 }
@@ -322,6 +328,33 @@ function SamplingEditor({ store, state, variant }: Props) {
           {draft && <span className="error-text">{draft.error}</span>}
         </>
       )}
+    </fieldset>
+  );
+}
+
+/** Downloads the sampled controller as one C99 source file (the same text as `loopwright controller --format c`). */
+function ControllerExportRow({ bridge, plant, variant }: Props) {
+  const [status, setStatus] = useState<ControllerDownloadStatus>({ state: "idle" });
+  useEffect(() => setStatus({ state: "idle" }), [variant.id]);
+  const sampled = variant.discretize !== undefined;
+  const ready = sampled && variant.stateFeedback !== undefined;
+  return (
+    <fieldset className="form-row">
+      <legend>Controller export</legend>
+      <button
+        type="button"
+        className="button-quiet small"
+        disabled={!ready || status.state === "working"}
+        onClick={async () => {
+          setStatus({ state: "working" });
+          setStatus(await exportControllerSource(bridge, plant, variant, downloadTextFile));
+        }}
+      >
+        Download C source
+      </button>
+      {!sampled && <span className="muted">Sample the controller (above) to export it as C; the command line takes --period for a continuous design.</span>}
+      {status.state === "done" && <span className="muted">{status.fileName}{status.checksPassed ? "" : ": a check failed, see the file's header"}</span>}
+      {status.state === "failed" && <span className="error-text" role="alert">{status.message}</span>}
     </fieldset>
   );
 }

@@ -324,7 +324,7 @@ function Workspace({ store, projectName, onClose, bridge }: Props & { store: Wor
                     <label htmlFor="variant-name">Variant name</label>
                     <input id="variant-name" key={variant.id} className="text-input" defaultValue={variant.name ?? ""} onBlur={(e) => e.target.value !== (variant.name ?? "") && renameVariantCommand(store, variant.id, e.target.value)} />
                   </div>
-                  <DesignPanel store={store} state={state} variant={variant} dims={dims} names={names} />
+                  <DesignPanel store={store} state={state} variant={variant} dims={dims} names={names} bridge={bridge} plant={plant} />
                 </>
               ) : (
                 <div className="empty-state">
