@@ -108,7 +108,7 @@ export function ResponsePlot(props: ResponsePlotProps) {
   const screen = variant === "screen";
   const [hover, setHover] = useState<number | null>(null);
   // A series drawn as markers only shows its marker alone in the legend.
-  const legend = legendFor(series).map((e, i) => ({ ...e, dash: series[i]!.overlay ? OVERLAY_DASH : undefined, ...(sampledMode(series[i]!) === "markers" ? { glyph: "markers" as const } : {}) }));
+  const legend = legendFor(series).map((e, i) => ({ ...e, dash: series[i]!.overlay ? OVERLAY_DASH : undefined, ...(sampledMode(series[i]!) === "markers" && series[i]!.sampled?.outputs !== "continuous" ? { glyph: "markers" as const } : {}) }));
   const captions = sampledCaptions(series);
   // Caption lines wrapped to the figure's width (text starts 44 units in, like legend labels).
   const captionLines = captions.map((c) => wrapWords(c.text, width - 44 - 8, CAPTION_FONT));

@@ -56,8 +56,11 @@ export function NonlinearCheckPanel({ bridge, document, variant, result, styleIn
                 title="Nonlinear plant (solid) and linear prediction (dashed)"
                 series={[
                   { name: "Nonlinear", time: r.time, output: transpose(r.outputs), outputNames: r.names.outputs, control: transpose(r.inputs), controlNames: r.names.inputs,
-                    controlLimits: input ? { lower: input.min ?? null, upper: input.max ?? null } : null, styleIndex },
-                  { name: "Linear prediction", time: r.time, output: transpose(r.linear.outputs), outputNames: r.names.outputs, control: transpose(r.linear.inputs), overlay: true, styleIndex },
+                    controlLimits: input ? { lower: input.min ?? null, upper: input.max ?? null } : null, styleIndex,
+                    // A sampled controller on the continuous plant: only the held input is drawn as stairs (as on the sheet).
+                    sampled: variant.discretize?.sampleTime ? { period: variant.discretize.sampleTime, outputs: "continuous" } : null },
+                  { name: "Linear prediction", time: r.time, output: transpose(r.linear.outputs), outputNames: r.names.outputs, control: transpose(r.linear.inputs), overlay: true, styleIndex,
+                    sampled: variant.discretize?.sampleTime ? { period: variant.discretize.sampleTime, outputs: "continuous" } : null },
                 ]}
                 width={width} height={360} fileName={`${variant.id}-nonlinear-check`} />
             </div>
