@@ -1,17 +1,19 @@
 /**
- * Transient metrics of one sampled response (rise, settling, overshoot, peak, steady state,
- * integral of absolute error), with the degenerate cases reported as a status, never as NaN.
+ * Transient metrics of one response given by its samples (rise, settling, overshoot, peak,
+ * steady state, integral of absolute error), with the degenerate cases reported as a status,
+ * never as NaN. A continuous response is read between its samples (interpolation); the response
+ * of a sampled loop (option `sampleTime`) only at its sample instants.
  */
 import { EngineError } from "../errors";
 
 export interface ResponseMetrics {
-  /** 10 % → 90 % rise time (interpolated), seconds; null when undefined (see status). */
+  /** 10 % → 90 % rise time (interpolated; sampled: between sample instants), seconds; null when undefined (see status). */
   riseTimeSec: number | null;
-  /** Time after which the response stays within the band (interpolated), seconds from time[0]. */
+  /** Time after which the response stays within the band (interpolated; sampled: a sample instant), seconds from time[0]. */
   settlingTimeSec: number | null;
   /** (peak − final)/|final| · 100 in the direction of the final value; 0 when there is none. */
   overshootPct: number;
-  /** Extreme value in the direction of the change (parabolic refinement between samples). */
+  /** Extreme value in the direction of the change (parabolic refinement between samples; sampled: the extreme sample). */
   peak: number;
   peakTimeSec: number;
   /** The final value used (finalValue option, else the last sample); null when unstable. */
@@ -36,6 +38,12 @@ export interface ResponseMetricsOptions {
   input?: number[];
   /** false when the system is known to be unstable (status "unstable"). Default: not known. */
   stable?: boolean;
+  /**
+   * Sample period T (s) when y is the response of a sampled (discrete-time) loop: y exists only
+   * at the instants k·T, and every metric is then read at those instants (see responseMetrics).
+   * Every time must be a whole multiple of T. Absent (or null): a continuous response.
+   */
+  sampleTime?: number | null;
 }
 
 /** Rise-time levels as fractions of the change (common practice: 10 % and 90 %). */
@@ -43,6 +51,8 @@ const RISE_LOW = 0.1;
 const RISE_HIGH = 0.9;
 /** Without finalValue, "settled" needs the last 10 % of the horizon inside the band. */
 const SETTLED_TAIL = 0.1;
+/** Relative tolerance for "t is a whole multiple of T" (as analysis/timeGrid.ts checks grids). */
+const SAMPLE_ALIGNMENT_TOL = 1e-9;
 
 /**
  * Computes, for samples y_k at times t_k (t₀ is the start of the response), with y_f the final
@@ -64,21 +74,47 @@ const SETTLED_TAIL = 0.1;
  *     and impulse responses); "not-settled-within-horizon" when the last sample is outside the
  *     band or, without finalValue, when the response left the band in the last 10 % of the
  *     horizon; "settled" otherwise.
- * Requires: time finite, strictly increasing, same length as y (≥ 2); y finite.
+ *   Sampled responses (`sampleTime` = T given): the output of a sampled loop exists only at the
+ *   instants k·T, so no time between samples is reported and nothing is interpolated:
+ *   - peak = the extreme sample itself, peak time its instant (no parabolic refinement);
+ *   - settling time = the first sample instant after which every sample stays within the band
+ *     (t_{k+1} − t₀ with k the last sample outside it; 0 when none is outside);
+ *   - rise time = t_j − t_i with t_i the first sample at or beyond the 10 % level and t_j the
+ *     first sample at or beyond the 90 % level: a whole number of periods. Interpolating the
+ *     crossings (as for a continuous response) would place them at instants where the sampled
+ *     loop has no output, and at a coarse T its error is of the order of T anyway;
+ *   - overshoot, steady state and status from those samples as above; IAE keeps the trapezoid
+ *     rule over the given samples (the summed error of the sequence, weighted by the spacing).
+ *   The metrics can only be as fine as the grid: when the times skip sample instants (a gap
+ *   wider than T), a note says so; pass every instant for the metrics of the sampled response.
+ *   Without `sampleTime` the results are exactly (bit for bit) those described above.
+ * Requires: time finite, strictly increasing, same length as y (≥ 2); y finite; with
+ *   `sampleTime` = T: T finite positive and every time a whole multiple of T (to 1e-9 relative).
  * Method: one pass per quantity; definitions as above (rise and settling as in K. Ogata,
  *   "Modern Control Engineering", 5th ed., §5-3, from memory; 10–90 % and ±2 % are common
- *   practice).
- * Cost: O(N) time, O(1) extra memory. Accuracy: interpolation error O(h²·|y''|) in the times.
- * Errors: "invalid-argument" (lengths, ordering, band not in (0, 1)), "non-finite" (NaN or
- *   Infinity in the samples or options), "empty" (fewer than 2 samples).
+ *   practice; reading them at the sample instants of a sampled loop is common practice too).
+ * Cost: O(N) time, O(1) extra memory. Accuracy: continuous: interpolation error O(h²·|y''|) in
+ *   the times; sampled: exact at the sample instants given (times are grid values).
+ * Errors: "invalid-argument" (lengths, ordering, band not in (0, 1), sampleTime not positive, a
+ *   time off the sample instants), "non-finite" (NaN or Infinity in the samples or options),
+ *   "empty" (fewer than 2 samples).
  * Example: y = 1 − e^{−t} on a fine grid with finalValue 1: riseTimeSec ≈ ln 9 ≈ 2.197,
- *   settlingTimeSec ≈ ln 50 ≈ 3.912, overshootPct 0; check |rise − ln 9| < 1e-4.
+ *   settlingTimeSec ≈ ln 50 ≈ 3.912, overshootPct 0; check |rise − ln 9| < 1e-4. Sampled:
+ *   y_k = 1 − 0.5^k at t_k = k (T = 1, k = 0..10) with finalValue 1 and sampleTime 1:
+ *   settlingTimeSec = 6 (0.5⁶ ≤ 0.02 < 0.5⁵), riseTimeSec = 4 − 1 = 3 (first samples ≥ 0.1 and
+ *   ≥ 0.9 are k = 1 and k = 4).
  */
 export function responseMetrics(time: number[], y: number[], options: ResponseMetricsOptions = {}): ResponseMetrics {
   checkSeries(time, y, options);
   const N = y.length;
   const t0 = time[0]!;
   const notes: string[] = [];
+  const T = options.sampleTime ?? null;
+  const sampled = T !== null;
+  if (sampled) {
+    notes.push(`metrics read at the sample instants (T = ${T} s)`);
+    if (skipsSamples(time, T)) notes.push("the times skip sample instants: the metrics are those of the given samples only");
+  }
   const band = options.settlingBand ?? 0.02;
   const last = y[N - 1]!;
   const yf = options.finalValue ?? last;
@@ -90,7 +126,7 @@ export function responseMetrics(time: number[], y: number[], options: ResponseMe
   const delta = yf - y0;
   const direction = delta >= 0 ? 1 : -1;
   const peakAt = extremeIndex(y, direction);
-  const { value: peak, time: peakTime } = refinePeak(time, y, peakAt);
+  const { value: peak, time: peakTime } = sampled ? { value: y[peakAt]!, time: time[peakAt]! } : refinePeak(time, y, peakAt);
   const base = {
     peak,
     peakTimeSec: peakTime - t0,
@@ -107,13 +143,13 @@ export function responseMetrics(time: number[], y: number[], options: ResponseMe
   const maxAbs = y.reduce((mx, v) => Math.max(mx, Math.abs(v)), 0);
   if (Math.abs(yf) <= 1e-12 * maxAbs || yf === 0) {
     const spread = y.reduce((mx, v) => Math.max(mx, Math.abs(v - yf)), 0);
-    const settling = settlingTime(time, y, yf, band * spread);
+    const settling = settlingTime(time, y, yf, band * spread, sampled);
     notes.push(`final value is zero: no rise time or overshoot; settling band is ±${band * 100} % of the largest deviation`);
     return { ...base, riseTimeSec: null, settlingTimeSec: settling, overshootPct: 0, steadyStateValue: yf, steadyStateError, status: "zero-final-value" };
   }
 
   const halfWidth = band * Math.abs(yf);
-  const settling = settlingTime(time, y, yf, halfWidth);
+  const settling = settlingTime(time, y, yf, halfWidth, sampled);
   let status: ResponseMetrics["status"] = "settled";
   if (settling === null) {
     status = "not-settled-within-horizon";
@@ -122,7 +158,7 @@ export function responseMetrics(time: number[], y: number[], options: ResponseMe
     status = "not-settled-within-horizon";
     notes.push("the response left the settling band during the last 10 % of the horizon; lengthen it");
   }
-  const rise = riseTime(time, y, y0 + RISE_LOW * delta, y0 + RISE_HIGH * delta, direction);
+  const rise = riseTime(time, y, y0 + RISE_LOW * delta, y0 + RISE_HIGH * delta, direction, sampled);
   if (rise === null) notes.push("the response never reaches 90 % of the final value within the horizon");
   const overshootRaw = (direction * (peak - yf)) / Math.abs(yf);
   const overshootPct = overshootRaw > 0 ? overshootRaw * 100 : 0;
@@ -158,6 +194,21 @@ function checkSeries(time: number[], y: number[], options: ResponseMetricsOption
     const v = options[key];
     if (v !== undefined && !Number.isFinite(v)) throw new EngineError("non-finite", `${key} is ${v}; it must be a finite number`, { argument: key });
   }
+  const T = options.sampleTime;
+  if (T !== undefined && T !== null) {
+    if (typeof T !== "number" || !(T > 0) || !Number.isFinite(T)) {
+      throw new EngineError("invalid-argument", `sampleTime must be a finite positive number of seconds, not ${T}`, { argument: "sampleTime" });
+    }
+    for (let k = 0; k < time.length; k++) {
+      const ratio = time[k]! / T;
+      if (Math.abs(ratio - Math.round(ratio)) > SAMPLE_ALIGNMENT_TOL * Math.max(1, Math.abs(ratio))) {
+        throw new EngineError("invalid-argument", `time[${k}] = ${time[k]} s is not a multiple of the sample period ${T} s; a sampled response exists only at its sample instants`, {
+          argument: "time",
+          index: k,
+        });
+      }
+    }
+  }
   if (options.input !== undefined) {
     if (!Array.isArray(options.input) || options.input.length !== y.length) {
       throw new EngineError("invalid-argument", `input must have one sample per time (${y.length})`, { argument: "input" });
@@ -166,6 +217,12 @@ function checkSeries(time: number[], y: number[], options: ResponseMetricsOption
       if (!Number.isFinite(v)) throw new EngineError("non-finite", `input[${k}] is ${v}; samples must be finite`, { argument: "input", index: k });
     });
   }
+}
+
+/** True when two consecutive times are more than one period apart (both are multiples of T). */
+function skipsSamples(time: number[], T: number): boolean {
+  for (let k = 1; k < time.length; k++) if (Math.round((time[k]! - time[k - 1]!) / T) > 1) return true;
+  return false;
 }
 
 function extremeIndex(y: number[], direction: number): number {
@@ -195,26 +252,29 @@ function crossingTime(ta: number, tb: number, ya: number, yb: number, level: num
   return ya === yb ? ta : ta + ((level - ya) / (yb - ya)) * (tb - ta);
 }
 
-function riseTime(time: number[], y: number[], low: number, high: number, direction: number): number | null {
+// Sampled: the crossing instants are the first samples at or beyond each level (no interpolation).
+function riseTime(time: number[], y: number[], low: number, high: number, direction: number, sampled: boolean): number | null {
   let tLow: number | null = null;
   for (let k = 0; k < y.length; k++) {
     const v = direction * y[k]!;
-    if (tLow === null && v >= direction * low) tLow = k === 0 ? time[0]! : crossingTime(time[k - 1]!, time[k]!, y[k - 1]!, y[k]!, low);
+    if (tLow === null && v >= direction * low) tLow = k === 0 || sampled ? time[k]! : crossingTime(time[k - 1]!, time[k]!, y[k - 1]!, y[k]!, low);
     if (tLow !== null && v >= direction * high) {
-      const tHigh = k === 0 ? time[0]! : crossingTime(time[k - 1]!, time[k]!, y[k - 1]!, y[k]!, high);
+      const tHigh = k === 0 || sampled ? time[k]! : crossingTime(time[k - 1]!, time[k]!, y[k - 1]!, y[k]!, high);
       return tHigh - tLow;
     }
   }
   return null;
 }
 
-function settlingTime(time: number[], y: number[], yf: number, halfWidth: number): number | null {
+function settlingTime(time: number[], y: number[], yf: number, halfWidth: number, sampled: boolean): number | null {
   const N = y.length;
   const outside = (k: number): boolean => Math.abs(y[k]! - yf) > halfWidth;
   if (outside(N - 1)) return null;
   let k = N - 2;
   while (k >= 0 && !outside(k)) k--;
   if (k < 0) return 0;
+  // Sampled: the first instant after which every sample is inside is the sample after the last exit.
+  if (sampled) return time[k + 1]! - time[0]!;
   // y leaves the band between samples k (outside) and k+1 (inside): interpolate at the edge crossed.
   const edge = y[k]! > yf ? yf + halfWidth : yf - halfWidth;
   return crossingTime(time[k]!, time[k + 1]!, y[k]!, y[k + 1]!, edge) - time[0]!;

@@ -3,7 +3,10 @@
  * and E) from rest, through the closed loop when there is one, with the metrics a reviewer reads
  * for rejection: peak deviation and its time, the final value (zero with integral action on
  * that output), and the time after which the output stays within ±2 % of the peak deviation
- * around its final value.
+ * around its final value. A sampled loop's metrics are read at its sample instants, on every
+ * instant from the first to the last time (the reported arrays stay on the given times): the
+ * peak is the largest sample and the settling time the first instant after which every sample
+ * stays within the band.
  */
 import { EngineError } from "../errors";
 import type { StateSpace } from "../model";
@@ -13,6 +16,7 @@ import { stepResponse } from "../analysis/timeResponse";
 import type { VariantSpec } from "./format";
 import type { VariantResult } from "./result";
 import { isStable } from "./resultJson";
+import { metricInstants } from "./responseResults";
 
 /** Half-width of the settling band, relative to the peak deviation (common practice: 2 %). */
 export const DISTURBANCE_SETTLING_BAND = 0.02;
@@ -37,7 +41,11 @@ export function disturbanceStep(
   const m = plant.B.columns;
   const T = system.sampleTime;
   const stable = isStable(poles(system), T);
-  const y = resp.outputs[0]!.map((v) => v * size);
+  // Sampled: the metrics see every sample instant, not only the requested times.
+  const instants = T === null ? null : metricInstants(spec.times, T);
+  const metricResp = instants !== null && instants.length > resp.time.length ? stepResponse(system, instants, { input: index, from: "disturbance" }) : resp;
+  const time = metricResp.time;
+  const y = metricResp.outputs[0]!.map((v) => v * size);
   const dc = stable ? dcGain({ ...system, B: system.F, D: system.E }) : null;
   const finalValue = dc && dc.gain ? dc.gain[0]![index]! * size : null;
   let peakIndex = 0;
@@ -56,10 +64,12 @@ export function disturbanceStep(
     if (last === y.length - 1) {
       status = "not-settled-within-horizon";
     } else if (last < 0) {
-      settlingTime = resp.time[0]!;
+      settlingTime = time[0]!;
+    } else if (T !== null) {
+      settlingTime = time[last + 1]!; // the first sample instant after which every sample is inside
     } else {
       // Interpolate the last exit from the band between samples last and last + 1.
-      const t0 = resp.time[last]!, t1 = resp.time[last + 1]!;
+      const t0 = time[last]!, t1 = time[last + 1]!;
       const e0 = Math.abs(y[last]! - finalValue) - band, e1 = Math.abs(y[last + 1]! - finalValue) - band;
       settlingTime = e0 === e1 ? t1 : t0 + ((t1 - t0) * e0) / (e0 - e1);
     }
@@ -73,7 +83,7 @@ export function disturbanceStep(
     outputNames: [...plant.names.outputs],
     ...(closed ? { control: resp.outputs.slice(p, p + m).map((row) => row.map((v) => v * size)) } : {}),
     peakDeviation,
-    peakTime: resp.time[peakIndex]!,
+    peakTime: time[peakIndex]!,
     steadyStateValue: finalValue,
     settlingTime,
     status,

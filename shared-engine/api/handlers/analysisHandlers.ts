@@ -211,6 +211,8 @@ export const analysisHandlers = {
         stable: stable ? undefined : false,
         ...(finalValue !== undefined ? { finalValue } : {}),
         ...(band !== undefined ? { settlingBand: band } : {}),
+        // A sampled model's response exists at its sample instants only: read the metrics there.
+        ...(model.sampleTime !== null ? { sampleTime: model.sampleTime } : {}),
       });
       return { output: model.names.outputs[i] ?? `y${i + 1}`, ...m };
     });
