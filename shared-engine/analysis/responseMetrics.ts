@@ -63,7 +63,8 @@ const SAMPLE_ALIGNMENT_TOL = 1e-9;
  *   - overshoot: (peak − y_f)/|y_f|·100 with peak the extreme of y in the direction of Δ
  *     (max y for Δ > 0, min y for Δ < 0; sign(Δ)·(peak − y_f) when it is positive), else 0;
  *   - peak and peak time: the extreme sample refined by the parabola through it and its two
- *     neighbours (exact for a locally quadratic response; within the sample range);
+ *     neighbours (exact for a locally quadratic response; within the sample range); with a zero
+ *     final value, the sample of largest |y − y_f| in either direction;
  *   - steady-state value: finalValue (pass the DC gain of a stable system) or else the last
  *     sample; steady-state error: reference − y_f;
  *   - IAE: ∫|r − y|dt by the trapezoid rule, each interval split at a sign change of r − y,
@@ -125,7 +126,11 @@ export function responseMetrics(time: number[], y: number[], options: ResponseMe
   const y0 = y[0]!;
   const delta = yf - y0;
   const direction = delta >= 0 ? 1 : -1;
-  const peakAt = extremeIndex(y, direction);
+  const maxAbs = y.reduce((mx, v) => Math.max(mx, Math.abs(v)), 0);
+  // A regulation response (final value zero, e.g. a disturbance step rejected by integral
+  // action): the peak is the largest deviation either way, not the extreme towards y_f.
+  const zeroFinal = Math.abs(yf) <= 1e-12 * maxAbs || yf === 0;
+  const peakAt = zeroFinal ? largestDeviationIndex(y, yf) : extremeIndex(y, direction);
   const { value: peak, time: peakTime } = sampled ? { value: y[peakAt]!, time: time[peakAt]! } : refinePeak(time, y, peakAt);
   const base = {
     peak,
@@ -140,8 +145,7 @@ export function responseMetrics(time: number[], y: number[], options: ResponseMe
     return { ...base, riseTimeSec: null, settlingTimeSec: null, overshootPct: 0, steadyStateValue: null, steadyStateError: null, status: "unstable" };
   }
   const steadyStateError = options.reference === undefined ? null : options.reference - yf;
-  const maxAbs = y.reduce((mx, v) => Math.max(mx, Math.abs(v)), 0);
-  if (Math.abs(yf) <= 1e-12 * maxAbs || yf === 0) {
+  if (zeroFinal) {
     const spread = y.reduce((mx, v) => Math.max(mx, Math.abs(v - yf)), 0);
     const settling = settlingTime(time, y, yf, band * spread, sampled);
     notes.push(`final value is zero: no rise time or overshoot; settling band is ±${band * 100} % of the largest deviation`);
@@ -293,4 +297,11 @@ function integralAbsoluteError(time: number[], y: number[], r: number): number {
     }
   }
   return sum;
+}
+
+/** Index of the sample farthest from `level` (the first one on ties). */
+function largestDeviationIndex(y: readonly number[], level: number): number {
+  let best = 0;
+  for (let k = 1; k < y.length; k++) if (Math.abs(y[k]! - level) > Math.abs(y[best]! - level)) best = k;
+  return best;
 }

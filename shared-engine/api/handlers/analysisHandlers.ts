@@ -204,7 +204,11 @@ export const analysisHandlers = {
     }
     const response = stepResponse(model, grid, { input, from });
     const stable = stability(model).stable;
-    const gain = stable && from === "input" ? dcGain(model).gain : null;
+    // The final value of each output: the DC gain of the stepped channel (input: C, B, D; disturbance:
+    // C, F, E), so a disturbance rejected by integral action has final value 0 and its metrics
+    // describe the deviation, not the last sample's rounding.
+    const channel = from === "input" ? model : stateSpaceFromMatrices({ A: model.A, B: model.F, C: model.C, D: model.E, sampleTime: model.sampleTime });
+    const gain = stable ? dcGain(channel).gain : null;
     const metrics: StepMetricsJson[] = response.outputs.map((y, i) => {
       const finalValue = gain ? gain[i]![input]! : undefined;
       const m = responseMetrics(response.time, y, {
