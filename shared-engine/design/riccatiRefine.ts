@@ -115,8 +115,9 @@ function closedLoop(data: RiccatiData, k: Float64Array): Float64Array {
  * The Lyapunov equation is solved in balanced coordinates: with Acl_b = D⁻¹·Acl·D (D the
  * power-of-two diagonal of Parlett–Reinsch balancing without permutation, so exact),
  * E_b = D·E·D solves the same equation with Acl_b and D·Res·D. This changes nothing for a
- * balanced Acl (D = I) and keeps the Lyapunov solver's ‖A‖-relative singularity test meaningful
- * when the states' units differ by orders of magnitude (there ‖Acl‖ is far above its eigenvalues).
+ * balanced Acl (D = I), and when the states' units differ by orders of magnitude (there ‖Acl‖
+ * is far above its eigenvalues) it keeps the correction accurate entry by entry: the Lyapunov
+ * solvers are backward stable only normwise.
  */
 function newtonStep(data: RiccatiData, kind: RiccatiKind, x: Float64Array, ev: RiccatiEvaluation): Float64Array {
   const { n } = data;

@@ -2,10 +2,12 @@
  * The quasi-triangular kernel of the continuous Lyapunov equation with a symmetric right-hand
  * side, S Y + Y Sᵀ = C, which solves for one triangle of the symmetric Y only.
  */
-import { solveByCompletePivoting, throwSingular, type SingularLabels } from "./sylvesterBlocks";
+import { blockPairGap, blockSpectrumInto, clearlySeparated, pairSeparation, solveByCompletePivoting, throwSingular, type SingularLabels } from "./sylvesterBlocks";
 
 // Scratch (the kernel is synchronous and not re-entrant): block starts and the ≤ 4×4 systems.
 let blockStart = new Int32Array(0);
+let spectrumRe = new Float64Array(0);
+let spectrumIm = new Float64Array(0);
 const kronecker = new Float64Array(16);
 const rhs = new Float64Array(4);
 
@@ -14,7 +16,8 @@ const rhs = new Float64Array(4);
  * with S upper quasi-triangular (a real Schur form: 1×1 and 2×2 diagonal blocks). On entry the
  * upper triangle of `y` (i ≤ j) holds C (symmetric; the lower triangle is ignored); on return
  * `y` holds Y in full (both triangles, exactly symmetric). Throws "singular" when a block
- * equation's smallest pivot is ≤ `threshold`, naming the offending eigenvalues.
+ * pair's eigenvalue separation min |λ + μ| (`blockPairGap`; 2|a| for a diagonal pair a ± iω) is
+ * ≤ `threshold` or its small system has a zero pivot, naming the eigenvalues and the gap.
  *
  * Method: the Bartels–Stewart block back substitution (R. H. Bartels & G. W. Stewart, Comm.
  * ACM 15(9), 1972) specialised to B = Sᵀ and symmetric C, so that only the blocks Y_IJ with
@@ -38,6 +41,13 @@ export function solveSymmetricLyapunovTriangularInPlace(s: Float64Array, n: numb
     i += i + 1 < n && s[(i + 1) * n + i] !== 0 ? 2 : 1;
   }
   blockStart[nb] = n;
+  if (spectrumRe.length < n) {
+    spectrumRe = new Float64Array(n);
+    spectrumIm = new Float64Array(n);
+  }
+  const re = spectrumRe, im = spectrumIm;
+  blockSpectrumInto(s, n, re, im);
+  const fastTest = threshold >= 1e-140;
   for (let jb = nb - 1; jb >= 0; jb--) {
     const j0 = blockStart[jb];
     const jEnd = blockStart[jb + 1] - 1;
@@ -59,7 +69,7 @@ export function solveSymmetricLyapunovTriangularInPlace(s: Float64Array, n: numb
         let v = y[si + j0];
         for (let k = i0 + 1; k <= j0; k++) v -= s[si + k] * y[yj + k];
         const d = s[si + i0] + s[yj + j0];
-        if (!(Math.abs(d) > threshold)) throwSingular("sylvester", s, n, i0, 1, s, n, j0, 1, Math.abs(d), threshold, labels);
+        if (!(Math.abs(d) > threshold)) throwSingular("sylvester", s, n, i0, 1, s, n, j0, 1, threshold, labels);
         v /= d;
         y[si + j0] = v;
         y[yj + i0] = v;
@@ -93,10 +103,15 @@ export function solveSymmetricLyapunovTriangularInPlace(s: Float64Array, n: numb
         rhs[1] = y[i0 * n + i0 + 1];
         rhs[3] = y[(i0 + 1) * n + i0 + 1];
       }
-      let pivot: number;
-      if (ib === jb) pivot = solveDiagonalBlock(s, n, i0, p, threshold);
-      else pivot = solveOffDiagonalBlock(s, n, i0, p, j0, q, threshold);
-      if (!(pivot > threshold)) throwSingular("sylvester", s, n, i0, p, s, n, j0, q, pivot, threshold, labels);
+      // The test compares the separation of the pair's eigenvalues, the number the error
+      // reports (|λ + μ|; a diagonal complex pair a ± iω gives 2|a|), not a pivot.
+      const si = im[i0], sj = im[j0];
+      if (!(fastTest && si >= 0 && sj >= 0 && clearlySeparated("sylvester", re[i0], si, re[j0], sj, threshold))) {
+        const gap = si >= 0 && sj >= 0 ? pairSeparation("sylvester", re[i0], si, re[j0], sj) : blockPairGap("sylvester", s, n, i0, p, s, n, j0, q);
+        if (!(gap > threshold)) throwSingular("sylvester", s, n, i0, p, s, n, j0, q, threshold, labels);
+      }
+      const solved = ib === jb ? solveDiagonalBlock(s, n, i0, p) : solveOffDiagonalBlock(s, n, i0, p, j0, q);
+      if (!solved) throwSingular("sylvester", s, n, i0, p, s, n, j0, q, threshold, labels, true);
       if (ib === jb) {
         const d = i0 * n + i0;
         y[d] = rhs[0];
@@ -161,25 +176,23 @@ function subtractTrailingProducts(s: Float64Array, y: Float64Array, n: number, j
 
 /**
  * Off-diagonal block (I < J): S_II Z + Z S_JJᵀ = R for the p×q block Z (row-major in `rhs`).
- * Returns the smallest pivot (not above `threshold` ⇒ not solved).
+ * The caller has tested the pair's separation; false only for a zero pivot (not solved).
  */
-function solveOffDiagonalBlock(s: Float64Array, n: number, i0: number, p: number, j0: number, q: number, threshold: number): number {
+function solveOffDiagonalBlock(s: Float64Array, n: number, i0: number, p: number, j0: number, q: number): boolean {
   const ii = i0 * n + i0, jj = j0 * n + j0;
   if (p === 1 && q === 1) {
-    const d = s[ii] + s[jj];
-    const pivot = Math.abs(d);
-    if (pivot > threshold) rhs[0] /= d;
-    return pivot;
+    rhs[0] /= s[ii] + s[jj];
+    return true;
   }
   if (q === 1) {
     // (S_II + t·I) z = r
     const t = s[jj];
-    return solve2x2(s[ii] + t, s[ii + 1], s[ii + n], s[ii + n + 1] + t, threshold);
+    return solve2x2(s[ii] + t, s[ii + 1], s[ii + n], s[ii + n + 1] + t) > 0;
   }
   if (p === 1) {
     // z·(s·I + S_JJᵀ) = r, i.e. (s·I + S_JJ) zᵀ = rᵀ
     const t = s[ii];
-    return solve2x2(s[jj] + t, s[jj + 1], s[jj + n], s[jj + n + 1] + t, threshold);
+    return solve2x2(s[jj] + t, s[jj + 1], s[jj + n], s[jj + n + 1] + t) > 0;
   }
   // 4×4 Kronecker form, unknowns ordered (a, c) ↦ 2a + c:
   // M[(a,c),(a',c')] = S_II[a][a']·δ(c,c') + δ(a,a')·S_JJ[c][c']
@@ -190,7 +203,7 @@ function solveOffDiagonalBlock(s: Float64Array, n: number, i0: number, p: number
   M[4] = b10; M[5] = a00 + b11; M[6] = 0; M[7] = a01;
   M[8] = a10; M[9] = 0; M[10] = a11 + b00; M[11] = b01;
   M[12] = 0; M[13] = a10; M[14] = b10; M[15] = a11 + b11;
-  return solveByCompletePivoting(M, 4, rhs, threshold);
+  return solveByCompletePivoting(M, 4, rhs, 0) > 0;
 }
 
 /**
@@ -198,15 +211,14 @@ function solveOffDiagonalBlock(s: Float64Array, n: number, i0: number, p: number
  * 2×2 with S_II = [a b; c d] and unknowns (y00, y01, y11) from rhs[0], rhs[1], rhs[3]:
  *   [2a 2b 0; c a+d b; 0 2c 2d]·(y00, y01, y11) = (r00, r01, r11),
  * whose eigenvalues 2λ₁, λ₁+λ₂, 2λ₂ are those of the full Kronecker form (λ₁+λ₂ twice there).
- * The solution (y00, y01, y11) is left in rhs[0], rhs[1], rhs[3]. Returns the smallest pivot.
+ * The solution (y00, y01, y11) is left in rhs[0], rhs[1], rhs[3]. The caller has tested the
+ * separation; false only for a zero pivot (not solved).
  */
-function solveDiagonalBlock(s: Float64Array, n: number, i0: number, p: number, threshold: number): number {
+function solveDiagonalBlock(s: Float64Array, n: number, i0: number, p: number): boolean {
   const ii = i0 * n + i0;
   if (p === 1) {
-    const d = 2 * s[ii];
-    const pivot = Math.abs(d);
-    if (pivot > threshold) rhs[0] /= d;
-    return pivot;
+    rhs[0] /= 2 * s[ii];
+    return true;
   }
   const a = s[ii], b = s[ii + 1], c = s[ii + n], d = s[ii + n + 1];
   const M = kronecker;
@@ -215,16 +227,17 @@ function solveDiagonalBlock(s: Float64Array, n: number, i0: number, p: number, t
   M[6] = 0; M[7] = 2 * c; M[8] = 2 * d;
   const r11 = rhs[3];
   rhs[2] = r11; // the 3-vector (r00, r01, r11) in rhs[0..2]
-  const pivot = solveByCompletePivoting(M, 3, rhs, threshold);
+  const solved = solveByCompletePivoting(M, 3, rhs, 0) > 0;
   rhs[3] = rhs[2];
-  return pivot;
+  return solved;
 }
 
 /**
  * 2×2 system [m00 m01; m10 m11]·z = (rhs[0], rhs[1]) by Gaussian elimination with complete
- * pivoting, in locals; the solution replaces rhs[0..1]. Returns the smaller pivot magnitude.
+ * pivoting, in locals; the solution replaces rhs[0..1]. Returns the smaller pivot magnitude
+ * (0: stopped at a zero pivot, not solved).
  */
-function solve2x2(m00: number, m01: number, m10: number, m11: number, threshold: number): number {
+function solve2x2(m00: number, m01: number, m10: number, m11: number): number {
   let r0 = rhs[0], r1 = rhs[1];
   const x00 = Math.abs(m00), x01 = Math.abs(m01), x10 = Math.abs(m10), x11 = Math.abs(m11);
   const big = Math.max(x00, x01, x10, x11);
@@ -242,11 +255,11 @@ function solve2x2(m00: number, m01: number, m10: number, m11: number, threshold:
     swapColumns = true;
   }
   const pivot1 = Math.abs(m00);
-  if (!(pivot1 > threshold)) return pivot1;
+  if (!(pivot1 > 0)) return 0;
   const l = m10 / m00;
   const u11 = m11 - l * m01;
   const pivot2 = Math.abs(u11);
-  if (!(pivot2 > threshold)) return pivot2;
+  if (!(pivot2 > 0)) return 0;
   const z1 = (r1 - l * r0) / u11;
   const z0 = (r0 - m01 * z1) / m00;
   rhs[0] = swapColumns ? z1 : z0;
