@@ -50,9 +50,9 @@ export function exportFileName(title: string): string {
   return `${stem || "project"}.loopwright.json`;
 }
 
-/** Offers `text` as a download named `fileName` (browser and Electron renderer). */
-export function downloadText(text: string, fileName: string, doc: Document = document): void {
-  const url = URL.createObjectURL(new Blob([text], { type: "application/json" }));
+/** Offers `text` as a download named `fileName` through a temporary Blob URL (browser and Electron renderer). */
+export function downloadText(text: string, fileName: string, mimeType = "application/json", doc: Document = document): void {
+  const url = URL.createObjectURL(new Blob([text], { type: mimeType }));
   const anchor = doc.createElement("a");
   anchor.href = url;
   anchor.download = fileName;

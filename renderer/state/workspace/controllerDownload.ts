@@ -13,7 +13,7 @@ export type ControllerDownloadStatus =
   | { state: "done"; fileName: string; checksPassed: boolean }
   | { state: "failed"; message: string };
 
-/** Saves `text` under `fileName` (the browser download below, or a fake in tests). */
+/** Saves `text` under `fileName` (renderer/io's downloadText, or a fake in tests). */
 export type SaveText = (text: string, fileName: string, mimeType: string) => void;
 
 /** Requests the C source of `variant` on `plant` and saves it; never throws (failures become a status with the engine's message). */
@@ -25,19 +25,4 @@ export async function exportControllerSource(bridge: EngineBridge, plant: PlantS
   } catch (error) {
     return { state: "failed", message: error instanceof EngineError ? error.message : String(error) };
   }
-}
-
-/** Offers `text` as a download named `fileName` through a temporary Blob URL. */
-export function downloadTextFile(text: string, fileName: string, mimeType: string, doc: Document = document): void {
-  const url = URL.createObjectURL(new Blob([text], { type: mimeType }));
-  const anchor = doc.createElement("a");
-  anchor.href = url;
-  anchor.download = fileName;
-  anchor.rel = "noopener";
-  anchor.style.display = "none";
-  doc.body.appendChild(anchor);
-  anchor.click();
-  anchor.remove();
-  // Revoke later: some browsers read the URL after click() returns.
-  setTimeout(() => URL.revokeObjectURL(url), 10_000);
 }

@@ -1,6 +1,7 @@
 import { useEffect, useState } from "react";
 import type { EngineBridge, PlantSpec, VariantSpec } from "../../../shared-engine/api/contract";
 import { formatReal } from "../../../shared-engine/format";
+import { downloadText } from "../../io";
 import {
   applyBrysonRule,
   parseComplexListText,
@@ -19,7 +20,6 @@ import {
   sliderToWeight,
   updateVariant,
   weightToSlider,
-  downloadTextFile,
   exportControllerSource,
   SLIDER_STEPS,
   type ControllerDownloadStatus,
@@ -347,7 +347,7 @@ function ControllerExportRow({ bridge, plant, variant }: Props) {
         disabled={!ready || status.state === "working"}
         onClick={async () => {
           setStatus({ state: "working" });
-          setStatus(await exportControllerSource(bridge, plant, variant, downloadTextFile));
+          setStatus(await exportControllerSource(bridge, plant, variant, downloadText));
         }}
       >
         Download C source

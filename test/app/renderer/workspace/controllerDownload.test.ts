@@ -8,7 +8,8 @@ import { dispatch } from "../../../../shared-engine/api/dispatcher";
 import { EngineError } from "../../../../shared-engine/errors";
 import { controllerExport } from "../../../../shared-engine/project/controllerExport";
 import { controllerSource } from "../../../../shared-engine/project/controllerSource";
-import { downloadTextFile, exportControllerSource } from "../../../../renderer/state/workspace";
+import { downloadText } from "../../../../renderer/io";
+import { exportControllerSource } from "../../../../renderer/state/workspace";
 
 const rack = JSON.parse(readFileSync("assets/examples/rack-temperature.loopwright.json", "utf8")) as ProjectFile;
 const plantOf = (id: string): PlantSpec => rack.plants.find((p) => p.id === rack.variants.find((v) => v.id === id)!.plant)!;
@@ -41,7 +42,7 @@ describe("controller C download", () => {
     const children: unknown[] = [];
     const anchor = { href: "", download: "", rel: "", style: { display: "" }, click() { clicked.push({ href: this.href, download: this.download }); }, remove() { children.splice(children.indexOf(this), 1); } };
     const doc = { createElement: () => anchor, body: { appendChild: (a: unknown) => children.push(a) } } as unknown as Document;
-    downloadTextFile("int x;\n", "lw_a.c", "text/x-csrc", doc);
+    downloadText("int x;\n", "lw_a.c", "text/x-csrc", doc);
     expect(clicked.length).toBe(1);
     expect(clicked[0]!.download).toBe("lw_a.c");
     const blob = resolveObjectURL(clicked[0]!.href)!;
