@@ -10,7 +10,7 @@
  * last two are by far the slowest parts of an evaluation), and the requirements.
  */
 import type { DesignRunResult, ProjectFile, VariantResult, VariantSpec } from "../../../shared-engine/api/contract";
-import { bodeRange, variantForDisplay } from "../workspace/designHelpers";
+import { bodeRange, nyquistLimit, variantForDisplay } from "../workspace/designHelpers";
 
 /** A compared variant that has no loop on the plot, and why (shown in the plot's caption). */
 export interface MissingLoop {
@@ -27,15 +27,6 @@ export interface ComparisonLoopPlan {
   sent: string[];
   /** Compared variants left out before evaluation, with the reason. */
   missing: MissingLoop[];
-}
-
-/**
- * Highest frequency drawn for a sampled loop: just below the Nyquist frequency π/T, where the
- * response of a sampled system folds back (the same 0.999·π/T that designHelpers' `bodeRange`
- * uses for its automatic range). Infinity for a continuous loop.
- */
-export function nyquistLimit(sampleTime: number | null): number {
-  return sampleTime !== null && sampleTime > 0 ? (0.999 * Math.PI) / sampleTime : Number.POSITIVE_INFINITY;
 }
 
 /** Sample period of the loop a variant designs: its discretization, else the (sampled) plant's. */

@@ -108,6 +108,14 @@ export function stepHorizon(variant: VariantSpec, last: VariantResult | null): n
   return niceCeil(Math.min(1e6, Math.max(1e-6, 8 / Math.min(...rates))));
 }
 
+/**
+ * Highest frequency drawn for a sampled loop: just below the Nyquist frequency π/T, where the
+ * response of a sampled system folds back. Infinity for a continuous loop.
+ */
+export function nyquistLimit(sampleTime: number | null): number {
+  return sampleTime !== null && sampleTime > 0 ? (0.999 * Math.PI) / sampleTime : Number.POSITIVE_INFINITY;
+}
+
 /** Frequencies of the Bode plot: the variant's own range, else two decades around the plant's poles. */
 export function bodeRange(variant: VariantSpec, last: VariantResult | null): [number, number] {
   const own = variant.bode?.frequencies;
@@ -118,7 +126,7 @@ export function bodeRange(variant: VariantSpec, last: VariantResult | null): [nu
     .filter((m) => m > 1e-9 && Number.isFinite(m));
   let lo = mags.length ? 10 ** (Math.floor(Math.log10(Math.min(...mags))) - 2) : 1e-2;
   let hi = mags.length ? 10 ** (Math.ceil(Math.log10(Math.max(...mags))) + 2) : 1e2;
-  if (ts) hi = Math.min(hi, (0.999 * Math.PI) / ts);
+  if (ts) hi = Math.min(hi, nyquistLimit(ts));
   if (!(lo < hi)) lo = hi / 1e4;
   return [lo, hi];
 }

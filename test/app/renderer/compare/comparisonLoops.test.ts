@@ -4,7 +4,8 @@ import type { DesignRunResult, EngineBridge, ProjectFile, RequestOptions, Varian
 import { createMemoryDocumentStore } from "../../../../renderer/db";
 import { DEMO_DOCUMENT } from "../../../../renderer/db/demoProject";
 import { buildComparisonTable, type ComparedVariant } from "../../../../renderer/state/compare/compareTable";
-import { nyquistLimit, planComparisonLoops } from "../../../../renderer/state/compare/comparisonLoops";
+import { planComparisonLoops } from "../../../../renderer/state/compare/comparisonLoops";
+import { nyquistLimit } from "../../../../renderer/state/workspace/designHelpers";
 import { createProjectToolsStore, type ProjectToolsStore } from "../../../../renderer/state/compare/projectToolsStore";
 import { bodeRange } from "../../../../renderer/state/workspace/designHelpers";
 import { expectAtMost, expectRelativeClose } from "../../../helpers/assertions";
