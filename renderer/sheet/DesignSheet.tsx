@@ -3,6 +3,7 @@
  * component in the app (print with the browser) and in `loopwright sheet` (rendered to static
  * HTML, printed by headless Chromium). Plots use their print variant (white, darker lines).
  */
+import { formatCount } from "../../shared-engine/format";
 import { BodePlot } from "../plots/BodePlot";
 import { ResponsePlot } from "../plots/ResponsePlot";
 import type { PoleZeroSeries } from "../plots/poleZeroModel";
@@ -36,7 +37,6 @@ const PLOT_WIDTH = 640;
 
 /** The plots' sampled option for a loop sampled every T seconds (null: continuous). */
 const sampledEvery = (T: number | null | undefined): { period: number } | null => (typeof T === "number" && T > 0 ? { period: T } : null);
-const count = (n: number, noun: string): string => `${n} ${noun}${n === 1 ? "" : "s"}`;
 
 function MarginsSection({ model }: { model: SheetModel }) {
   const m = model.input.result.margins;
@@ -203,7 +203,7 @@ export function DesignSheet(props: SheetInput) {
       <section className="lw-sheet-section">
         <h2>2 Plant: {plant.name ?? plant.id}</h2>
         <p>
-          {count(labels.states.length, "state")}, {count(labels.inputs.length, "input")}, {count(labels.outputs.length, "output")}, {count(labels.disturbances.length, "disturbance")};{" "}
+          {formatCount(labels.states.length, "state")}, {formatCount(labels.inputs.length, "input")}, {formatCount(labels.outputs.length, "output")}, {formatCount(labels.disturbances.length, "disturbance")};{" "}
           {spec.sampleTime === null ? "continuous time" : `sampled, T = ${fullDigits(spec.sampleTime)} s`}.{spec.type === "nonlinear" ? " Linearized model δx′ = Aδx + Bδu + Fδw, δy = Cδx + Dδu + Eδw." : " Model x′ = Ax + Bu + Fw, y = Cx + Du + Ew."}
           {result.plant && ` ${result.plant.controllable ? "Controllable" : result.plant.stabilizable ? "Stabilizable, not controllable" : "NOT stabilizable"}; ${result.plant.observable ? "observable" : result.plant.detectable ? "detectable, not observable" : "NOT detectable"}.`}
         </p>
