@@ -105,3 +105,32 @@ export function useServedRenderer(): { readonly server: StaticServer; readonly p
     },
   };
 }
+
+/**
+ * One browser for a whole test file: serves the renderer build, launches Chromium on a fresh
+ * profile, opens the project list and watches the page for problems (console errors, failed or
+ * off-origin requests). Closed and removed after the file.
+ */
+export function useOpenedApp(): { readonly server: StaticServer; readonly context: BrowserContext; readonly page: Page; readonly problems: string[] } {
+  const served = useServedRenderer();
+  let context: BrowserContext | undefined;
+  let page: Page | undefined;
+  let problems: string[] = [];
+  beforeAll(async () => {
+    context = await launchBrowser(served.profileDir);
+    page = context.pages()[0] ?? (await context.newPage());
+    problems = watchPageProblems(page, served.server.url.replace(/\/$/, ""));
+    await page.goto(served.server.url);
+    await page.getByTestId("project-count").filter({ hasText: /project/ }).waitFor();
+  });
+  // Vitest runs after-hooks in reverse order of registration, so the browser closes before the server.
+  afterAll(async () => {
+    await context?.close();
+  });
+  return {
+    get server() { return served.server; },
+    get context() { return context!; },
+    get page() { return page!; },
+    get problems() { return problems; },
+  };
+}
