@@ -4,21 +4,9 @@
 // match. Every expected document below is written out by hand from the rules in
 // renderer/state/workspace/variantSignals.ts and plantFormEdits.ts.
 import { describe, expect, it } from "vitest";
-import type { EngineBridge, ProjectFile } from "../../../../shared-engine/api/contract";
-import { EngineError } from "../../../../shared-engine/errors";
-import { createMemoryDocumentStore } from "../../../../renderer/db/documentStore";
-import { createWorkspaceStore, resizeEntryGrid, resizeEntryGridPlant, switchModelForm, switchModelFormCommand, type WorkspaceStore } from "../../../../renderer/state/workspace";
-
-/** A bridge that refuses every request: these tests look at documents and labels, not results. */
-const refusingBridge: EngineBridge = { request: () => Promise.reject(new EngineError("cancelled", "no engine in this test", {})) };
-
-async function openStore(doc: ProjectFile): Promise<WorkspaceStore> {
-  const documents = createMemoryDocumentStore(() => 1000);
-  await documents.save("p", structuredClone(doc), { baseRevision: 0, message: "test document" });
-  const store = createWorkspaceStore({ documents, bridge: refusingBridge, projectId: "p", evaluateDelayMs: 5, saveDelayMs: 5 });
-  await store.load();
-  return store;
-}
+import type { ProjectFile } from "../../../../shared-engine/api/contract";
+import { openDocumentOnlyStore } from "./documentOnlyStore";
+import { resizeEntryGrid, resizeEntryGridPlant, switchModelForm, switchModelFormCommand } from "../../../../renderer/state/workspace";
 
 /** 2 × 2 transfer functions (invented, test): outputs flow and level, inputs u1 and pump. */
 const TF_DOCUMENT: ProjectFile = {
@@ -108,7 +96,7 @@ describe("resizing an entry grid refits the plant's variants", () => {
   });
 
   it("names what was pruned in the undo label and the save message, and Undo brings it back", async () => {
-    const store = await openStore(TF_DOCUMENT);
+    const store = await openDocumentOnlyStore(TF_DOCUMENT);
     try {
       expect(resizeEntryGrid(store, "tanks", 1, 2)).toBe(true);
       const label =
@@ -196,7 +184,7 @@ describe("switching the model form", () => {
   });
 
   it("through the store: the names stay, and Undo brings back the previous model", async () => {
-    const store = await openStore(SISO);
+    const store = await openDocumentOnlyStore(SISO);
     try {
       expect(switchModelFormCommand(store, "room", { type: "zero-pole-gain", zeros: [], poles: [-1], gain: 1, sampleTime: null }, "started a new zeros, poles and gain model")).toBe(true);
       expect(store.getState().undoLabel).toBe("started a new zeros, poles and gain model of plant room");

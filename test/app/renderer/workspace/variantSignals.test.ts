@@ -3,11 +3,9 @@
 // scenario, robustness parameters) of an equation plant. Expected documents are written out by
 // hand from the rules in renderer/state/workspace/variantSignals.ts.
 import { describe, expect, it } from "vitest";
-import type { EngineBridge, ProjectFile, VariantSpec } from "../../../../shared-engine/api/contract";
-import { EngineError } from "../../../../shared-engine/errors";
-import { createMemoryDocumentStore } from "../../../../renderer/db/documentStore";
+import type { ProjectFile, VariantSpec } from "../../../../shared-engine/api/contract";
+import { openDocumentOnlyStore } from "./documentOnlyStore";
 import {
-  createWorkspaceStore,
   labelWithPruned,
   pruneVariantSignals,
   removeParameter,
@@ -16,19 +14,8 @@ import {
   renameSignal,
   resizeDimensions,
   resizePlantReporting,
-  type WorkspaceStore,
 } from "../../../../renderer/state/workspace";
 import { LINEAR_QUEUE_DOCUMENT } from "./linearQueueDocument";
-
-const refusingBridge: EngineBridge = { request: () => Promise.reject(new EngineError("cancelled", "no engine in this test", {})) };
-
-async function openStore(doc: ProjectFile): Promise<WorkspaceStore> {
-  const documents = createMemoryDocumentStore(() => 1000);
-  await documents.save("p", structuredClone(doc), { baseRevision: 0, message: "test document" });
-  const store = createWorkspaceStore({ documents, bridge: refusingBridge, projectId: "p", evaluateDelayMs: 5, saveDelayMs: 5 });
-  await store.load();
-  return store;
-}
 
 /** The linear queue with a second disturbance and disturbance steps naming each (by name and by index). */
 function queueWithTwoDisturbances(): ProjectFile {
@@ -66,7 +53,7 @@ describe("variant references on a state-space plant", () => {
   });
 
   it("the resize command names what it pruned in the undo label", async () => {
-    const store = await openStore(queueWithTwoDisturbances());
+    const store = await openDocumentOnlyStore(queueWithTwoDisturbances());
     try {
       expect(resizeDimensions(store, "queue", { states: 2, inputs: 1, outputs: 1, disturbances: 1 })).toBe(true);
       expect(store.getState().undoLabel).toBe(
@@ -127,7 +114,7 @@ const TANK: ProjectFile = {
 
 describe("variant references on an equation plant", () => {
   it("renaming an output, a disturbance, a state and a parameter renames them in integral action, the check scenario and the robustness sweep", async () => {
-    const store = await openStore(TANK);
+    const store = await openDocumentOnlyStore(TANK);
     try {
       expect(renameNonlinearRow(store, "tank", "outputs", 0, "height")).toBe(true);
       expect(renameNonlinearRow(store, "tank", "disturbances", 0, "drain")).toBe(true);
@@ -145,7 +132,7 @@ describe("variant references on an equation plant", () => {
   });
 
   it("removing a parameter drops it from the robustness sweep, and the whole sweep with its last parameter, saying so", async () => {
-    const store = await openStore(TANK);
+    const store = await openDocumentOnlyStore(TANK);
     try {
       expect(removeParameter(store, "tank", 0)).toBe(true);
       expect(store.getState().document!.variants[0]!.robustness!.parameters).toEqual([{ name: "area", percent: 5 }]);
