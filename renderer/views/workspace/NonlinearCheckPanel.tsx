@@ -26,6 +26,9 @@ export function NonlinearCheckPanel({ bridge, document, variant, result, styleIn
   if (plant?.model.type !== "nonlinear") return <p className="muted">The nonlinear checks need a plant given by equations; this variant uses {variant.plant}.</p>;
   const model = nonlinearModelOf(document, variant.plant);
   const input = model.inputs[0];
+  // A sampled controller on the continuous plant: only the held input follows the sampled drawing (as on the sheet).
+  const period = variant.discretize?.sampleTime;
+  const heldInput = period ? { period, outputs: "continuous" as const } : null;
   const attempt = (f: () => void) => {
     try {
       setProblem(null);
@@ -57,10 +60,9 @@ export function NonlinearCheckPanel({ bridge, document, variant, result, styleIn
                 series={[
                   { name: "Nonlinear", time: r.time, output: transpose(r.outputs), outputNames: r.names.outputs, control: transpose(r.inputs), controlNames: r.names.inputs,
                     controlLimits: input ? { lower: input.min ?? null, upper: input.max ?? null } : null, styleIndex,
-                    // A sampled controller on the continuous plant: only the held input is drawn as stairs (as on the sheet).
-                    sampled: variant.discretize?.sampleTime ? { period: variant.discretize.sampleTime, outputs: "continuous" } : null },
+                    sampled: heldInput },
                   { name: "Linear prediction", time: r.time, output: transpose(r.linear.outputs), outputNames: r.names.outputs, control: transpose(r.linear.inputs), overlay: true, styleIndex,
-                    sampled: variant.discretize?.sampleTime ? { period: variant.discretize.sampleTime, outputs: "continuous" } : null },
+                    sampled: heldInput },
                 ]}
                 width={width} height={360} fileName={`${variant.id}-nonlinear-check`} />
             </div>
